@@ -1,0 +1,29 @@
+import { Migrator, type Migration, type MigrationProvider, type Kysely } from 'kysely'
+import * as createSchema from '../../migrations/2026_12_01_0900_create_schema.ts'
+
+// A static provider: Kysely's FileMigrationProvider reads the folder at run time, which fails under
+// vitest and in the compiled build. Add each new migration here, in order.
+const migrations: Record<string, Migration> = {
+  '2026_12_01_0900_create_schema': createSchema,
+}
+
+const provider: MigrationProvider = { getMigrations: async () => migrations }
+
+export interface MigrationOutcome {
+  applied: string[]
+  latest: string
+}
+
+/** Brings the database to the latest schema. Returns the names of the migrations it applied (none when current). Throws when a migration fails. */
+export async function migrateToLatest(db: Kysely<any>): Promise<MigrationOutcome> {
+  const migrator = new Migrator({ db, provider })
+  const { error, results } = await migrator.migrateToLatest()
+  if (error) throw error
+  const names = Object.keys(migrations)
+  return {
+    applied: (results ?? []).filter((r) => r.status === 'Success').map((r) => r.migrationName),
+    latest: names[names.length - 1]!,
+  }
+}
+
+export const migrationNames = Object.keys(migrations)
