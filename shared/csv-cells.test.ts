@@ -1,0 +1,83 @@
+import { describe, expect, it } from 'vitest'
+import { normalizeHeader, parseDateCell, parseNumberCell } from './csv-cells.ts'
+import { parseCsv } from './csv.ts'
+
+describe('parseCsv', () => {
+  it('reads quoted newlines, doubled quotes, CRLF, CR-only ends and a BOM, keeping start lines', () => {
+    const r = parseCsv('\ufeffa;b\r\n1;"x\r\ny"\r\n\r\n2;3\r\n"a""b";c\rlast;x')
+    expect(r.delimiter).toBe(';')
+    expect(r.records).toEqual([['a', 'b'], ['1', 'x\r\ny'], ['2', '3'], ['a"b', 'c'], ['last', 'x']])
+    expect(r.lines).toEqual([1, 2, 5, 6, 7])
+    expect(r.problem).toBeUndefined()
+  })
+
+  it('stops at a quote that is never closed and names the line it opened on', () => {
+    const r = parseCsv('a,b\n1,2\n3,"x\n4,5\n')
+    expect(r.records).toHaveLength(2)
+    expect(r.problem).toMatchObject({ code: 'csv_quote_not_closed', line: 3 })
+  })
+
+  it('refuses text after a closing quote and a quote inside an unquoted cell', () => {
+    expect(parseCsv('a,b\n1,"x"y\n').problem).toMatchObject({ code: 'csv_text_after_quote', line: 2 })
+    expect(parseCsv('a,b\n1,x"y\n').problem).toMatchObject({ code: 'csv_stray_quote', line: 2 })
+  })
+
+  it('picks tab and semicolon delimiters from the header line', () => {
+    expect(parseCsv('a\tb\n1\t2').delimiter).toBe('\t')
+    expect(parseCsv('a;b;c\n1,5;2;3').delimiter).toBe(';')
+  })
+})
+
+describe('parseNumberCell', () => {
+  const cases = [
+    { raw: '42', decimal: '.', value: 42, qualifier: null },
+    { raw: ' 3.5 ', decimal: '.', value: 3.5, qualifier: null },
+    { raw: '12,5', decimal: ',', value: 12.5, qualifier: null },
+    { raw: '<0.1', decimal: '.', value: 0.1, qualifier: '<' },
+    { raw: '< 0,05', decimal: ',', value: 0.05, qualifier: '<' },
+    { raw: '>5000', decimal: '.', value: 5000, qualifier: '>' },
+    { raw: '1,234.5', decimal: '.', value: 1234.5, qualifier: null },
+    { raw: '1.234,5', decimal: ',', value: 1234.5, qualifier: null },
+    { raw: '1e3', decimal: '.', value: 1000, qualifier: null },
+  ] as const
+  it.each(cases)('reads $raw with decimal mark "$decimal"', ({ raw, decimal, value, qualifier }) => {
+    expect(parseNumberCell(raw, decimal)).toEqual({ ok: true, value: { value, qualifier } })
+  })
+
+  it('refuses a thousands separator that could be read two ways', () => {
+    const r = parseNumberCell('1,234', '.')
+    expect(r.ok).toBe(false)
+    if (!r.ok) expect(r.reason).toMatch(/ambiguous/)
+    expect(parseNumberCell('1.234', ',').ok).toBe(false)
+  })
+
+  it('refuses spreadsheet errors, words and the wrong decimal mark', () => {
+    for (const raw of ['#VALUE!', '#DIV/0!', 'n/a', '12,5', '']) expect(parseNumberCell(raw, '.').ok).toBe(false)
+  })
+})
+
+describe('parseDateCell', () => {
+  const cases = [
+    { raw: '2026-03-09', iso: '2026-03-09' },
+    { raw: '2026/3/9', iso: '2026-03-09' },
+    { raw: '3/9/2026', iso: '2026-03-09' }, // US month/day/year
+    { raw: '09.03.2026', iso: '2026-03-09' }, // day.month.year
+    // spreadsheet serial days (1900 system): 46090 is 2026-03-09, 25569 would be 1970-01-01
+    { raw: '46090', iso: '2026-03-09' },
+  ]
+  it.each(cases)('reads $raw as $iso', ({ raw, iso }) => {
+    expect(parseDateCell(raw)).toEqual({ ok: true, value: iso })
+  })
+  it('refuses impossible dates and text', () => {
+    for (const raw of ['2026-02-30', '13/13/2026', 'soon', '']) expect(parseDateCell(raw).ok).toBe(false)
+  })
+})
+
+describe('normalizeHeader', () => {
+  it('forgives case, spacing, punctuation and takes the bracketed unit aside', () => {
+    expect(normalizeHeader('Total N (lb/1000 gal)')).toEqual({ key: 'total_n', unit: 'lb/1000 gal' })
+    expect(normalizeHeader('\ufeffReport-ID')).toEqual({ key: 'report_id', unit: null })
+    expect(normalizeHeader(' Dry Matter % ')).toEqual({ key: 'dry_matter_pct', unit: null })
+    expect(normalizeHeader('NH4-N [ppm]')).toEqual({ key: 'nh4_n', unit: 'ppm' })
+  })
+})
