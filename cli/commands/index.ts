@@ -1,10 +1,14 @@
 import type { Command } from 'commander'
 import { register as registerInit } from './init.ts'
 import { register as registerUsers } from './users.ts'
+import { register as registerShare } from './share.ts'
+import { register as registerServe } from './serve.ts'
 
 // Registration only: each register() declares a command's options and help, and loads the
 // implementation from cli/actions/ when the command runs. Keep these modules light.
 export function registerCommands(program: Command): void {
   registerInit(program)
   registerUsers(program)
+  registerShare(program)
+  registerServe(program)
 }

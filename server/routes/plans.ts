@@ -1,0 +1,47 @@
+import { Router } from 'express'
+import type { Kysely } from 'kysely'
+import type { PlanVersionsResponse } from '../../shared/api-types.ts'
+import type { Database } from '../../shared/db/schema.ts'
+import { canSeeFarm, findPlanVersions } from '../../shared/db/viewer-queries.ts'
+import { AppError } from '../../shared/errors.ts'
+import type { Sessions } from '../auth.ts'
+import type { PlanCache } from '../plan-cache.ts'
+
+/** A plan id from the path; anything else is simply a plan that does not exist. */
+export function parsePlanId(text: string): number | null {
+  return /^[1-9]\d{0,11}$/.test(text) ? Number(text) : null
+}
+
+export function planRoutes({ db, sessions, plans }: { db: Kysely<Database>; sessions: Sessions; plans: PlanCache }): Router {
+  const router = Router()
+
+  async function visiblePlan(id: string, viewer: Parameters<typeof canSeeFarm>[0]) {
+    const planId = parsePlanId(id)
+    const plan = planId === null ? undefined : await plans.get(planId)
+    // another farm's plan answers exactly like a missing one
+    if (!plan || !canSeeFarm(viewer, { id: plan.owner.farmId, organizationId: plan.owner.organizationId })) {
+      throw new AppError('not_found', `no plan ${id.slice(0, 24)}`)
+    }
+    return plan
+  }
+
+  router.get('/:id', async (req, res) => {
+    const { viewer } = await sessions.require(req)
+    const plan = await visiblePlan(req.params.id, viewer)
+    res.set('Cache-Control', 'private, no-cache').set('ETag', plan.etag)
+    if (req.headers['if-none-match'] === plan.etag) {
+      res.status(304).end()
+      return
+    }
+    res.type('application/json').send(plan.json)
+  })
+
+  router.get('/:id/versions', async (req, res) => {
+    const { viewer } = await sessions.require(req)
+    const plan = await visiblePlan(req.params.id, viewer)
+    const body: PlanVersionsResponse = { versions: await findPlanVersions(db, plan.owner) }
+    res.set('Cache-Control', 'private, no-cache').json(body)
+  })
+
+  return router
+}
