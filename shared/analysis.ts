@@ -10,18 +10,7 @@ import {
 } from './units.ts'
 
 export type ManureForm = 'liquid' | 'solid'
-export type AnalysisUnits =
-  | 'lb_per_1000gal'
-  | 'lb_per_ton'
-  | 'pct'
-  | 'ppm'
-  | 'mg_per_l'
-  | 'g_per_l'
-  | 'kg_per_m3'
-  | 'kg_per_t'
-export type AnalysisBasis = 'as_is' | 'dry'
-
-export const analysisUnits: readonly AnalysisUnits[] = [
+export const analysisUnits = [
   'lb_per_1000gal',
   'lb_per_ton',
   'pct',
@@ -30,7 +19,9 @@ export const analysisUnits: readonly AnalysisUnits[] = [
   'g_per_l',
   'kg_per_m3',
   'kg_per_t',
-]
+] as const
+export type AnalysisUnits = (typeof analysisUnits)[number]
+export type AnalysisBasis = 'as_is' | 'dry'
 
 /** A lab analysis as reported: any supported unit and basis, P as P or P2O5, K as K or K2O. */
 export interface AnalysisInput {
