@@ -1,5 +1,8 @@
 import type { Command } from 'commander'
+import { register as registerBackup } from './backup.ts'
+import { register as registerCheck } from './check.ts'
 import { register as registerInit } from './init.ts'
+import { register as registerRestore } from './restore.ts'
 import { register as registerUsers } from './users.ts'
 import { register as registerShare } from './share.ts'
 import { register as registerServe } from './serve.ts'
@@ -8,6 +11,9 @@ import { register as registerServe } from './serve.ts'
 // implementation from cli/actions/ when the command runs. Keep these modules light.
 export function registerCommands(program: Command): void {
   registerInit(program)
+  registerBackup(program)
+  registerRestore(program)
+  registerCheck(program)
   registerUsers(program)
   registerShare(program)
   registerServe(program)
