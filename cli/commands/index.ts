@@ -4,6 +4,11 @@ import { register as registerCheck } from './check.ts'
 import { register as registerInit } from './init.ts'
 import { register as registerRestore } from './restore.ts'
 import { register as registerUsers } from './users.ts'
+import { register as registerFarms } from './farms.ts'
+import { register as registerStorages } from './storages.ts'
+import { register as registerFields } from './fields.ts'
+import { register as registerSamples } from './samples.ts'
+import { register as registerApplications } from './applications.ts'
 import { register as registerShare } from './share.ts'
 import { register as registerServe } from './serve.ts'
 
@@ -15,6 +20,11 @@ export function registerCommands(program: Command): void {
   registerRestore(program)
   registerCheck(program)
   registerUsers(program)
+  registerFarms(program)
+  registerStorages(program)
+  registerFields(program)
+  registerSamples(program)
+  registerApplications(program)
   registerShare(program)
   registerServe(program)
 }
