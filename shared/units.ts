@@ -17,6 +17,8 @@ export const unitDefinitions = {
   ft2PerAcre: { value: 43560, source: 'NIST Handbook 44, Appendix C (exact)' },
   /** lb per short ton. Exact by definition. */
   lbPerShortTon: { value: 2000, source: 'NIST Handbook 44, Appendix C (exact)' },
+  /** ft per statute mile. Exact: NIST Handbook 44, Appendix C. */
+  ftPerMile: { value: 5280, source: 'NIST Handbook 44, Appendix C (exact)' },
   /** m² per hectare. Exact by definition (SI). */
   m2PerHa: { value: 10000, source: 'SI Brochure, 9th ed., Table 8 (exact)' },
   /** in³ per US gallon. Exact: NIST Handbook 44, Appendix C. */
