@@ -1,19 +1,63 @@
-import { StrictMode } from 'react'
+import { QueryClient, QueryClientProvider, useQuery } from '@tanstack/react-query'
+import { StrictMode, type ComponentType } from 'react'
 import { createRoot } from 'react-dom/client'
+import { createBrowserRouter, Navigate, Outlet, RouterProvider, useLocation } from 'react-router'
+import { sessionQueryOptions } from './api/queries.ts'
+import { Loading, Problem, Shell } from './components/layout.tsx'
 import './styles.css'
 
-// Placeholder shell until the viewer lands: it only says what this page will be.
-function App() {
+const queryClient = new QueryClient({ defaultOptions: { queries: { refetchOnWindowFocus: false } } })
+
+/** Pages load on demand, so the first page carries only what it needs. */
+const page = (load: () => Promise<{ default: ComponentType }>) => async () => ({ Component: (await load()).default })
+
+function SignedIn() {
+  const session = useQuery(sessionQueryOptions())
+  const location = useLocation()
+  if (session.isPending) return <Shell><Loading what="your account" /></Shell>
+  if (session.isError) return <Shell><Problem title="The viewer cannot be reached" message={(session.error as Error).message} /></Shell>
+  if (!session.data) {
+    const next = location.pathname === '/' ? '' : `?next=${encodeURIComponent(location.pathname + location.search)}`
+    return <Navigate to={`/sign-in${next}`} replace />
+  }
   return (
-    <main className="p-6 font-sans">
-      <h1 className="text-2xl font-semibold">Pitside viewer</h1>
-      <p>Sign-in and plans are served by <code>pitside serve</code>.</p>
-    </main>
+    <Shell user={session.data.user}>
+      <Outlet />
+    </Shell>
   )
 }
 
+function Home() {
+  const session = useQuery(sessionQueryOptions())
+  const user = session.data?.user
+  if (user?.role === 'client' && user.farms.length === 1) return <Navigate to={`/farms/${encodeURIComponent(user.farms[0]!)}`} replace />
+  return <Navigate to="/farms" replace />
+}
+
+function NotFound() {
+  return <Shell><Problem title="Not found" message="There is no page at this address." /></Shell>
+}
+
+const router = createBrowserRouter([
+  { path: '/sign-in', lazy: page(() => import('./routes/sign-in.tsx')) },
+  { path: '/s/:token', lazy: page(() => import('./routes/share.tsx')) },
+  {
+    path: '/',
+    element: <SignedIn />,
+    children: [
+      { index: true, element: <Home /> },
+      { path: 'farms', lazy: page(() => import('./routes/farms.tsx')) },
+      { path: 'farms/:code', lazy: page(() => import('./routes/farm.tsx')) },
+      { path: 'plans/:id', lazy: page(() => import('./routes/plan.tsx')) },
+    ],
+  },
+  { path: '*', element: <NotFound /> },
+])
+
 createRoot(document.getElementById('root')!).render(
   <StrictMode>
-    <App />
+    <QueryClientProvider client={queryClient}>
+      <RouterProvider router={router} />
+    </QueryClientProvider>
   </StrictMode>,
 )

@@ -1,0 +1,95 @@
+// Display helpers: numbers, units and plain names for the codes stored in plans.
+
+const formatters = new Map<number, Intl.NumberFormat>()
+function formatter(digits: number) {
+  let f = formatters.get(digits)
+  if (!f) {
+    f = new Intl.NumberFormat('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits })
+    formatters.set(digits, f)
+  }
+  return f
+}
+
+export function num(value: unknown): number | null {
+  return typeof value === 'number' && Number.isFinite(value) ? value : null
+}
+
+/** A figure with grouping and fixed decimals; a dash when missing. */
+export function fmt(value: unknown, digits = 0): string {
+  const n = num(value)
+  return n === null ? '—' : formatter(digits).format(n)
+}
+
+/** Decimals that suit a rate unit: whole gallons, tenths of tons. */
+export function rateDigits(unit: string | null | undefined): number {
+  return unit && /ton|t\/ha/.test(unit) ? 1 : 0
+}
+
+export function amountDigits(unit: string | null | undefined): number {
+  return unit && /ton|^t$/.test(unit) ? 0 : 0
+}
+
+/** The unit of a whole amount (gallons or tons) from a rate unit such as gal/ac. */
+export function amountUnit(rateUnit: string | null | undefined, fallback = ''): string {
+  if (!rateUnit) return fallback
+  return rateUnit.split('/')[0] ?? fallback
+}
+
+const names: Record<string, string> = {
+  corn_grain: 'Corn, grain',
+  corn_silage: 'Corn, silage',
+  soybean: 'Soybean',
+  wheat: 'Wheat',
+  alfalfa: 'Alfalfa',
+  grass_hay: 'Grass hay',
+  injected: 'Injected',
+  broadcast: 'Broadcast',
+  broadcast_incorporated: 'Broadcast, incorporated',
+  irrigated: 'Irrigated',
+  deep_pit: 'Deep pit',
+  earthen_basin: 'Earthen basin',
+  lagoon: 'Lagoon',
+  tank: 'Tank',
+  stack: 'Stack',
+  other: 'Other',
+  n: 'N',
+  p2o5: 'P₂O₅',
+  k2o: 'K₂O',
+  lowest: 'lowest rate',
+  max_rate: 'rate cap',
+  fixed_rate: 'fixed rate',
+}
+
+/** A plain name for a stored code (crop, method, storage kind, nutrient); the code itself when unknown. */
+export function label(code: string | null | undefined): string {
+  if (!code) return '—'
+  return names[code] ?? code.replace(/_/g, ' ')
+}
+
+export const nutrients = ['n', 'p2o5', 'k2o'] as const
+export type Nutrient = (typeof nutrients)[number]
+
+export const nutrientColours: Record<Nutrient, string> = {
+  n: 'var(--color-nitrogen)',
+  p2o5: 'var(--color-phosphate)',
+  k2o: 'var(--color-potash)',
+}
+
+export function date(iso: string | null | undefined): string {
+  if (!iso) return '—'
+  return iso.slice(0, 10)
+}
+
+export function dateTime(iso: string | null | undefined): string {
+  if (!iso) return '—'
+  const d = new Date(iso.includes('T') ? iso : iso.replace(' ', 'T') + 'Z')
+  if (Number.isNaN(d.getTime())) return iso
+  return `${d.toISOString().slice(0, 10)} ${d.toISOString().slice(11, 16)} UTC`
+}
+
+/** Warnings in stored plans may be strings or `{ code, message }` objects. */
+export function warningText(w: unknown): string {
+  if (typeof w === 'string') return w
+  if (w && typeof w === 'object' && 'message' in w) return String((w as { message: unknown }).message)
+  return JSON.stringify(w)
+}

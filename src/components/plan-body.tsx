@@ -1,0 +1,345 @@
+import type { ReactNode } from 'react'
+import type { PlanField, PlanStorage, PlanView } from '../../shared/api-types.ts'
+import { Cautions } from './cautions.tsx'
+import { BudgetBar, SupplyChart } from './charts.tsx'
+import { amountUnit, date, dateTime, fmt, label, num, nutrients, rateDigits, warningText } from './format.ts'
+
+interface StorageGroup {
+  code: string
+  name: string | null
+  kind: string | null
+  species: string | null
+  form: string | null
+  stored: PlanStorage | undefined
+  fields: PlanField[]
+  rateUnit: string
+  amountUnit: string
+}
+
+/** Fields grouped by the storage they draw from, in the plan's order; fields without a storage last. */
+export function groupByStorage(plan: PlanView): StorageGroup[] {
+  const fields = plan.result.fields ?? []
+  const stored = plan.result.storages ?? []
+  const codes = [...new Set([...stored.map((s) => s.storage), ...fields.map((f) => f.storage ?? '')])]
+  return codes
+    .map((code) => {
+      const info = plan.storages.find((s) => s.code === code)
+      const fs = fields.filter((f) => (f.storage ?? '') === code)
+      const st = stored.find((s) => s.storage === code)
+      const rateUnit = fs.find((f) => f.rate_unit)?.rate_unit ?? (info?.form === 'solid' ? 'ton/ac' : 'gal/ac')
+      return {
+        code,
+        name: info?.name ?? null,
+        kind: info?.kind ?? null,
+        species: info?.species ?? null,
+        form: info?.form ?? null,
+        stored: st,
+        fields: fs,
+        rateUnit,
+        amountUnit: st?.unit ?? amountUnit(rateUnit, 'gal'),
+      }
+    })
+    .filter((g) => g.fields.length > 0 || g.stored)
+}
+
+/** Acres the manure in storage would cover at this plan's rates, and the acres that draw from it. */
+export function landBudget(g: StorageGroup): { needed: number | null; available: number } {
+  const available = g.fields.reduce((a, f) => a + (num(f.acres) ?? 0), 0)
+  const own = num(g.stored?.acres_needed)
+  if (own !== null) return { needed: own, available: num(g.stored?.acres_available) ?? available }
+  const planned = num(g.stored?.planned) ?? g.fields.reduce((a, f) => a + (num(f.total_manure) ?? 0), 0)
+  const inStorage = num(g.stored?.in_storage)
+  if (inStorage === null || planned <= 0 || available <= 0) return { needed: null, available }
+  return { needed: inStorage / (planned / available), available }
+}
+
+function storageTitle(g: StorageGroup): string {
+  return g.code ? `${g.code}${g.name ? ` · ${g.name}` : ''}` : 'No storage named'
+}
+
+function SuppliedNeed({ f, k }: { f: PlanField; k: (typeof nutrients)[number] }) {
+  const supplied = num(f.supplied?.[k])
+  const need = num(f.need?.[k])
+  const short = supplied !== null && need !== null && supplied + 0.5 < need
+  return (
+    <td className="num">
+      <span className={short ? 'font-semibold' : undefined}>{fmt(supplied)}</span>
+      <span className="text-muted"> / {fmt(need)}</span>
+    </td>
+  )
+}
+
+function FieldTable({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
+  const rd = rateDigits(g.rateUnit)
+  return (
+    <div className="overflow-x-auto rounded-md border border-line bg-surface" tabIndex={0} role="region" aria-label={`Field rates from ${g.code}`}>
+      <table className="data min-w-[56rem]">
+        <caption className="sr-only">Fields drawing from {storageTitle(g)}: rate, method and nutrients</caption>
+        <thead>
+          <tr>
+            <th scope="col" className="sticky left-0 z-10">Field</th>
+            <th scope="col" className="num">Area<span className="unit">ac</span></th>
+            <th scope="col">Crop</th>
+            <th scope="col">Method</th>
+            <th scope="col" className="num">Rate<span className="unit">{g.rateUnit}</span></th>
+            <th scope="col">Limited by</th>
+            <th scope="col" className="num">N supplied / need<span className="unit">lb/ac</span></th>
+            <th scope="col" className="num">P₂O₅ supplied / need<span className="unit">lb/ac</span></th>
+            <th scope="col" className="num">K₂O supplied / need<span className="unit">lb/ac</span></th>
+            <th scope="col" className="num">Fertilizer still needed N–P₂O₅–K₂O<span className="unit">lb/ac</span></th>
+            <th scope="col" className="num">Total<span className="unit">{g.amountUnit}</span></th>
+            <th scope="col" className="num">Loads<span className="unit">count</span></th>
+          </tr>
+        </thead>
+        <tbody>
+          {g.fields.map((f) => {
+            const warnings = (f.warnings ?? []).map(warningText)
+            return (
+              <tr key={f.field}>
+                <th scope="row" className="sticky left-0 bg-surface text-left font-semibold">
+                  {f.field}
+                  {fieldNames.get(f.field) && <span className="block text-xs font-normal text-muted">{fieldNames.get(f.field)}</span>}
+                  {warnings.length > 0 && (
+                    <ul className="mt-1 max-w-[14rem] text-xs font-normal text-danger">
+                      {warnings.map((w) => (
+                        <li key={w}>⚠ {w}</li>
+                      ))}
+                    </ul>
+                  )}
+                </th>
+                <td className="num">{fmt(f.acres, 1)}</td>
+                <td>{label(f.crop)}</td>
+                <td>{label(f.method)}</td>
+                <td className="num font-semibold">{fmt(f.rate, rd)}</td>
+                <td>{label(f.limited_by)}</td>
+                {nutrients.map((k) => (
+                  <SuppliedNeed key={k} f={f} k={k} />
+                ))}
+                <td className="num">{nutrients.map((k) => fmt(f.supplemental?.[k])).join('–')}</td>
+                <td className="num">{fmt(f.total_manure)}</td>
+                <td className="num">{fmt(f.loads)}</td>
+              </tr>
+            )
+          })}
+        </tbody>
+      </table>
+    </div>
+  )
+}
+
+function factorValue(v: unknown): string {
+  if (typeof v === 'number') return Number.isInteger(v) ? String(v) : fmt(v, v < 1 ? 2 : 1)
+  if (typeof v === 'string') return v
+  if (v && typeof v === 'object') return Object.entries(v as Record<string, unknown>).map(([k, x]) => `${label(k)} ${factorValue(x)}`).join(', ')
+  return '—'
+}
+
+function sourceText(s: unknown): string {
+  if (typeof s === 'string') return s
+  if (s && typeof s === 'object') {
+    const o = s as Record<string, unknown>
+    const what = o.factor ?? o.for ?? o.key ?? o.name
+    const where = o.source ?? o.title ?? o.citation ?? o.reference
+    if (where) return `${what ? `${label(String(what))}: ` : ''}${typeof where === 'string' ? where : JSON.stringify(where)}${o.table ? `, ${o.table}` : ''}${o.page ? `, p. ${o.page}` : ''}`
+  }
+  return JSON.stringify(s)
+}
+
+function Factors({ fields }: { fields: PlanField[] }) {
+  const withFactors = fields.filter((f) => (f.factors && Object.keys(f.factors).length) || (f.sources && f.sources.length))
+  if (withFactors.length === 0) return <p className="text-sm text-muted">This plan does not list the factors it used.</p>
+  return (
+    <div className="space-y-2">
+      {withFactors.map((f) => (
+        <details key={f.field} className="rounded-md border border-line bg-surface p-3">
+          <summary className="cursor-pointer font-semibold">
+            {f.field} · {label(f.method)}
+          </summary>
+          {f.factors && (
+            <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
+              {Object.entries(f.factors).map(([k, v]) => (
+                <div key={k} className="contents">
+                  <dt className="text-muted">{label(k)}</dt>
+                  <dd className="font-mono">{factorValue(v)}</dd>
+                </div>
+              ))}
+            </dl>
+          )}
+          {f.sources && f.sources.length > 0 && (
+            <>
+              <h4 className="mt-3 text-sm font-semibold">Sources</h4>
+              <ul className="list-disc pl-5 text-sm">
+                {f.sources.map((s, i) => (
+                  <li key={i}>{sourceText(s)}</li>
+                ))}
+              </ul>
+            </>
+          )}
+        </details>
+      ))}
+    </div>
+  )
+}
+
+function StorageBudget({ g }: { g: StorageGroup }) {
+  const land = landBudget(g)
+  const planned = num(g.stored?.planned) ?? g.fields.reduce((a, f) => a + (num(f.total_manure) ?? 0), 0)
+  const analysis = g.stored?.analysis ?? null
+  const per = typeof analysis?.per === 'string' ? (analysis.per === '1000gal' ? '1000 gal' : analysis.per) : g.form === 'solid' ? 'ton' : '1000 gal'
+  return (
+    <article className="rounded-md border border-line bg-surface p-4">
+      <h3 className="font-semibold">{storageTitle(g)}</h3>
+      <p className="text-sm text-muted">
+        {[label(g.kind), g.species, g.form].filter((x) => x && x !== '—').join(' · ')}
+        {num(g.stored?.samples) !== null && ` · ${g.stored!.samples} samples in the latest round`}
+      </p>
+      <div className="mt-3 space-y-3">
+        <BudgetBar used={planned} available={num(g.stored?.in_storage)} usedLabel="planned" availableLabel="in storage" unit={g.amountUnit} overMessage="More is planned than there is in storage." />
+        <BudgetBar used={land.needed} available={land.available} usedLabel="acres needed" availableLabel="acres available" unit="ac" overMessage="The manure in storage needs more land than these fields at these rates." />
+      </div>
+      {analysis && (
+        <table className="data mt-3">
+          <caption className="sr-only">Analysis used for {g.code}</caption>
+          <thead>
+            <tr>
+              <th scope="col">Analysis used</th>
+              <th scope="col" className="num">Total N<span className="unit">lb/{per}</span></th>
+              <th scope="col" className="num">NH₄-N<span className="unit">lb/{per}</span></th>
+              <th scope="col" className="num">P₂O₅<span className="unit">lb/{per}</span></th>
+              <th scope="col" className="num">K₂O<span className="unit">lb/{per}</span></th>
+            </tr>
+          </thead>
+          <tbody>
+            <tr>
+              <th scope="row" className="text-left font-normal">mean</th>
+              {(['total_n', 'ammonium_n', 'p2o5', 'k2o'] as const).map((k) => (
+                <td key={k} className="num">{fmt(analysis[k], 1)}</td>
+              ))}
+            </tr>
+            {g.stored?.cv && (
+              <tr>
+                <th scope="row" className="text-left font-normal">spread (CV %)</th>
+                {(['total_n', 'ammonium_n', 'p2o5', 'k2o'] as const).map((k) => (
+                  <td key={k} className="num">{fmt(g.stored!.cv![k], 0)}</td>
+                ))}
+              </tr>
+            )}
+          </tbody>
+        </table>
+      )}
+    </article>
+  )
+}
+
+/** The applicator's sheet: only on paper. */
+function PrintSheet({ plan, groups }: { plan: PlanView; groups: StorageGroup[] }) {
+  return (
+    <div className="only-print">
+      <h1 className="text-lg font-semibold">
+        {plan.farm.name} ({plan.farm.code}) · application sheet · season {plan.season}, version {plan.version}
+      </h1>
+      <p className="text-xs">
+        Plan {plan.id}, computed {dateTime(plan.created_at)} by {plan.created_by}; analyses as of {date(plan.as_of)}. Printed {new Date().toISOString().slice(0, 10)}.
+      </p>
+      {groups.map((g) => (
+        <section key={g.code} className="mt-3">
+          <h2 className="font-semibold">From {storageTitle(g)}</h2>
+          <table className="data sheet">
+            <thead>
+              <tr>
+                <th scope="col">Field</th>
+                <th scope="col" className="num">Area<span className="unit">ac</span></th>
+                <th scope="col">Method</th>
+                <th scope="col" className="num">Rate<span className="unit">{g.rateUnit}</span></th>
+                <th scope="col" className="num">Total<span className="unit">{g.amountUnit}</span></th>
+                <th scope="col" className="num">Loads<span className="unit">count</span></th>
+                <th scope="col">Date spread<span className="unit">yyyy-mm-dd</span></th>
+                <th scope="col">Loads hauled<span className="unit">count</span></th>
+                <th scope="col">Initials<span className="unit">&nbsp;</span></th>
+              </tr>
+            </thead>
+            <tbody>
+              {g.fields.map((f) => (
+                <tr key={f.field}>
+                  <th scope="row" className="text-left">{f.field}</th>
+                  <td className="num">{fmt(f.acres, 1)}</td>
+                  <td>{label(f.method)}</td>
+                  <td className="num font-semibold">{fmt(f.rate, rateDigits(g.rateUnit))}</td>
+                  <td className="num">{fmt(f.total_manure)}</td>
+                  <td className="num">{fmt(f.loads)}</td>
+                  <td />
+                  <td />
+                  <td />
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </section>
+      ))}
+    </div>
+  )
+}
+
+/** Everything a plan shows, for the plan page and the shared-plan page. */
+export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: ReactNode; versions?: ReactNode }) {
+  const groups = groupByStorage(plan)
+  const fields = plan.result.fields ?? []
+  const fieldNames = new Map(plan.fields.map((f) => [f.code, f.name]))
+  return (
+    <div className="space-y-8">
+      <PrintSheet plan={plan} groups={groups} />
+      <dl className="no-print grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
+        <div><dt className="text-muted">Computed</dt><dd>{dateTime(plan.created_at)}</dd></div>
+        <div><dt className="text-muted">By</dt><dd className="break-all">{plan.created_by}</dd></div>
+        <div><dt className="text-muted">Analyses as of</dt><dd>{date(plan.as_of)}</dd></div>
+        <div><dt className="text-muted">Method</dt><dd>{plan.reference_set} {plan.reference_set_version && `v${plan.reference_set_version}`} · basis {label(plan.basis)}</dd></div>
+      </dl>
+
+      <div className="no-print">
+        <Cautions id="cautions-top" />
+      </div>
+
+      <section aria-labelledby="budget-title" className="no-print">
+        <h2 id="budget-title" className="mb-3 text-xl font-semibold">Manure and land</h2>
+        <div className="grid gap-4 md:grid-cols-2">
+          {groups.filter((g) => g.code).map((g) => (
+            <StorageBudget key={g.code} g={g} />
+          ))}
+        </div>
+      </section>
+
+      <section aria-labelledby="rates-title" className="no-print">
+        <h2 id="rates-title" className="mb-3 text-xl font-semibold">Field rates</h2>
+        <div className="space-y-5">
+          {groups.map((g) => (
+            <div key={g.code}>
+              <h3 className="mb-2 font-semibold">From {storageTitle(g)}</h3>
+              <FieldTable g={g} fieldNames={fieldNames} />
+            </div>
+          ))}
+        </div>
+        <p className="mt-2 text-sm text-muted">Supplied is what the crop can use this season; a bold figure falls short of the need.</p>
+      </section>
+
+      {fields.length > 0 && (
+        <section aria-labelledby="chart-title" className="no-print">
+          <h2 id="chart-title" className="mb-3 text-xl font-semibold">Supply against need</h2>
+          <div className="rounded-md border border-line bg-surface p-3">
+            <SupplyChart fields={fields} caption={`Nutrients supplied against need for ${fields.length} fields, in pounds per acre`} />
+          </div>
+        </section>
+      )}
+
+      {whatIf}
+
+      <section aria-labelledby="factors-title" className="no-print">
+        <h2 id="factors-title" className="mb-3 text-xl font-semibold">Factors and sources</h2>
+        <Factors fields={fields} />
+      </section>
+
+      {versions}
+
+      <Cautions id="cautions" />
+    </div>
+  )
+}

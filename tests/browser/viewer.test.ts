@@ -1,0 +1,140 @@
+import { mkdirSync } from 'node:fs'
+import { join } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import type { BrowserContext, Page } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { runCli } from '../helpers/cli.ts'
+import { makeTempDir, type TempDir } from '../helpers/temp-db.ts'
+import { findShareUrl } from '../helpers/viewer-eml.ts'
+import { launchBrowser, spawnServe, type ServeProcess } from '../helpers/viewer-server.ts'
+import { buildViewerDemoDatabase, type ViewerDemo } from '../helpers/viewer-demo.ts'
+
+// Runs against the BUILT app (npm run build) served by the real `pitside serve`.
+const artifacts = fileURLToPath(new URL('../artifacts/', import.meta.url))
+mkdirSync(artifacts, { recursive: true })
+const shot = (page: Page, name: string, fullPage = true) => page.screenshot({ path: join(artifacts, name), fullPage })
+
+let tmp: TempDir
+let demo: ViewerDemo
+let server: ServeProcess
+let browser: { context: BrowserContext; close(): Promise<void> }
+
+beforeAll(async () => {
+  tmp = makeTempDir('pitside-browser-')
+  demo = await buildViewerDemoDatabase(tmp)
+  server = await spawnServe(demo.dbFile, { PITSIDE_OUTBOX: tmp.path('outbox') })
+  browser = await launchBrowser()
+})
+
+afterAll(async () => {
+  await browser?.close()
+  await server?.stop()
+  tmp?.cleanup()
+})
+
+async function freshPage(): Promise<Page> {
+  await browser.context.clearCookies()
+  const page = await browser.context.newPage()
+  page.on('pageerror', (e) => {
+    throw e
+  })
+  return page
+}
+
+async function signIn(page: Page, email: string) {
+  await page.goto(`${server.url}/`)
+  await page.waitForURL(/\/sign-in/)
+  await page.getByLabel('E-mail address').fill(email)
+  await page.getByLabel('Password').fill(demo.password)
+  await page.getByRole('button', { name: 'Sign in' }).click()
+}
+
+describe('the viewer in a browser', () => {
+  it('lets an advisor sign in, browse the farms and open a plan', async () => {
+    const page = await freshPage()
+    await signIn(page, demo.advisor)
+    await page.getByRole('heading', { name: 'Farms', level: 1 }).waitFor()
+    const rows = page.locator('table tbody tr')
+    expect(await rows.count()).toBe(demo.advisorFarms.length)
+    await shot(page, 'farms-advisor.png')
+    await page.getByRole('link', { name: demo.farmName }).click()
+    await page.getByRole('heading', { name: 'Storages' }).waitFor()
+    await page.locator('svg[role="img"]').first().waitFor()
+    await shot(page, 'farm-advisor.png')
+    await page.getByRole('link', { name: /Season \d{4}, version \d+/ }).first().click()
+    await page.getByRole('heading', { name: 'Field rates' }).waitFor()
+    expect(await page.getByText(/hydrogen sulfide/i).count()).toBeGreaterThan(0)
+    expect(await page.getByRole('heading', { name: 'Versions' }).count()).toBe(1)
+    await shot(page, 'plan-advisor.png')
+    await page.setViewportSize({ width: 390, height: 844 })
+    await shot(page, 'plan-phone.png')
+    await page.evaluate(() => window.scrollTo(0, 0))
+    await shot(page, 'plan-phone-top.png', false)
+    await page.getByRole('heading', { name: 'Supply against need' }).scrollIntoViewIfNeeded()
+    await shot(page, 'plan-phone-chart.png', false)
+    await page.setViewportSize({ width: 1280, height: 800 })
+    await page.close()
+  })
+
+  it("shows a client only their own farm, and another farm's page as not found", async () => {
+    const page = await freshPage()
+    await signIn(page, demo.client)
+    await page.waitForURL(new RegExp(`/farms/${demo.clientFarm}$`))
+    await page.getByRole('heading', { name: 'Storages' }).waitFor()
+    await page.goto(`${server.url}/farms`)
+    await page.getByRole('heading', { name: 'Farms', level: 1 }).waitFor()
+    expect(await page.locator('table tbody tr').count()).toBe(1)
+    await shot(page, 'farms-client.png')
+    await page.goto(`${server.url}/farms/${demo.otherFarm}`)
+    await page.getByRole('heading', { name: 'Not found' }).waitFor()
+    await page.goto(`${server.url}/plans/${demo.otherPlanId}`)
+    await page.getByRole('heading', { name: 'Not found' }).waitFor()
+    await shot(page, 'other-plan-client.png')
+    await page.close()
+  })
+
+  it('opens the plan behind the share link in the outbox e-mail, without an account', async () => {
+    const r = await runCli(['--db', demo.dbFile, '--json', 'share', String(demo.planId), '--to', `${demo.clientFarm.toLowerCase()}@farm.example`, '--expires', '7d'], {
+      env: { PITSIDE_OUTBOX: tmp.path('outbox'), PITSIDE_PUBLIC_URL: server.url },
+    })
+    expect(r.exitCode, String(r.stderr)).toBe(0)
+    const created = JSON.parse(String(r.stdout)) as { id: string; url: string; expires_at: string; outbox_file: string }
+    const link = findShareUrl(created.outbox_file)
+    expect(link).toBe(created.url)
+    const page = await freshPage()
+    await page.goto(link!)
+    await page.getByRole('heading', { name: 'Field rates' }).waitFor()
+    expect(await page.getByText('Shared plan, read only').count()).toBe(1)
+    expect(await page.getByText(/hydrogen sulfide/i).count()).toBeGreaterThan(0)
+    expect(await page.getByRole('button', { name: 'Sign out' }).count()).toBe(0)
+    await shot(page, 'share.png')
+    const tampered = link!.slice(0, -4) + (link!.endsWith('AAAA') ? 'BBBB' : 'AAAA')
+    await page.goto(tampered)
+    await page.getByRole('heading', { name: 'This link cannot be opened' }).waitFor()
+    await shot(page, 'share-tampered.png')
+    await page.close()
+  })
+
+  it('prints the applicator sheet within the width of letter and A4 paper', async () => {
+    const page = await freshPage()
+    await signIn(page, demo.advisor)
+    await page.getByRole('heading', { name: 'Farms', level: 1 }).waitFor()
+    await page.goto(`${server.url}/plans/${demo.planId}`)
+    await page.getByRole('heading', { name: 'Field rates' }).waitFor()
+    await page.emulateMedia({ media: 'print' })
+    expect(await page.getByRole('heading', { name: /application sheet/ }).isVisible()).toBe(true)
+    expect(await page.getByRole('heading', { name: 'Field rates' }).isVisible()).toBe(false)
+    expect(await page.locator('#cautions-title').isVisible()).toBe(true)
+    expect(await page.locator('#cautions-top-title').isVisible()).toBe(false)
+    // printable width at 12 mm margins, in CSS pixels (96 per inch): A4 186 mm, letter 191.9 mm
+    for (const [paper, widthPx] of [['a4', 703], ['letter', 725]] as const) {
+      await page.setViewportSize({ width: widthPx, height: 1000 })
+      const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)
+      expect(overflow, paper).toBeLessThanOrEqual(0)
+      await shot(page, `print-${paper}.png`)
+    }
+    const pdf = await page.pdf({ format: 'A4', margin: { top: '12mm', bottom: '12mm', left: '12mm', right: '12mm' } })
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-')
+    await page.close()
+  })
+})
