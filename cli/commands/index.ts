@@ -9,6 +9,7 @@ import { register as registerStorages } from './storages.ts'
 import { register as registerFields } from './fields.ts'
 import { register as registerSamples } from './samples.ts'
 import { register as registerApplications } from './applications.ts'
+import { register as registerDemo } from './demo.ts'
 import { register as registerShare } from './share.ts'
 import { register as registerServe } from './serve.ts'
 
@@ -25,6 +26,7 @@ export function registerCommands(program: Command): void {
   registerFields(program)
   registerSamples(program)
   registerApplications(program)
+  registerDemo(program)
   registerShare(program)
   registerServe(program)
 }
