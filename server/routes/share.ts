@@ -13,11 +13,11 @@ export const shareHeaders: RequestHandler = (_req, res, next) => {
   next()
 }
 
-const messages = {
-  invalid: 'This share link is not valid. Check that the whole link was copied from the e-mail, or ask your advisor for a new one.',
-  expired: 'This share link has expired. Ask your advisor for a new one.',
-  revoked: 'This share link has been withdrawn. Ask your advisor for a new one.',
-} as const
+// One answer for every refusal (RFC 8725 §2): telling expired or withdrawn links from forged ones
+// would confirm to a forger that a signature passed.
+const refused =
+  'This share link cannot be opened: it is not valid, has expired or has been withdrawn. Check that the whole link was copied from the e-mail, or ask your advisor for a new one.'
+const messages = { invalid: refused, expired: refused, revoked: refused } as const
 
 export function shareRoutes({
   db,
