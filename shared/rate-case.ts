@@ -120,7 +120,19 @@ export function parseRateCase(
     }
   }
   const result = rateCaseSchema.safeParse(data)
-  if (!result.success) return { problems: problemsFromZod(result.error) }
+  if (!result.success) {
+    const problems = problemsFromZod(result.error)
+    // Report impossible analyses too, so one run shows every problem in the manure block.
+    const m = (data as { manure?: unknown } | null)?.manure
+    if (m && typeof m === 'object') {
+      const reported = new Set(problems.map((p) => (p.path ?? []).join('.')))
+      for (const p of normalizeAnalysis(rateCaseAnalysisInput(m as RateCase['manure'])).problems) {
+        const path = ['manure', p.column ?? '']
+        if (!reported.has(path.join('.')) && p.code !== 'missing' && p.code !== 'not_a_number') problems.push({ code: p.code, path, message: p.message })
+      }
+    }
+    return { problems }
+  }
   const c = result.data
   const problems: Problem[] = []
   const add = (path: (string | number)[], code: string, message: string) => problems.push({ code, path, message })

@@ -245,6 +245,16 @@ export function computeRate(c: RateCase, options: { referenceSet?: ReferenceSet 
         message: c.basis === 'lowest' ? 'no nutrient has a need that this manure can supply; rate is 0' : `no ${label(c.basis as Nutrient)} need that this manure can supply; rate is 0`,
       })
     }
+    // A P application for several seasons may not exceed this season's N-based rate (NRCS
+    // Practice Standard 590, multi-year P applications; see docs/decisions).
+    if (limitedBy === 'p2o5' && pSeasons && pSeasons.length > 1 && rates.n !== null && rate > rates.n) {
+      rate = rates.n
+      limitedBy = 'n'
+      warnings.push({
+        code: 'p_budget_capped_by_n',
+        message: `the P2O5 for ${pSeasons.length} seasons would oversupply N; the rate is held to this season's N-based rate`,
+      })
+    }
     if (c.max_rate !== undefined && rate > rateIn(c.max_rate)) {
       rate = rateIn(c.max_rate)
       limitedBy = 'max_rate'

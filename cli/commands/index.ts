@@ -12,6 +12,7 @@ import { register as registerApplications } from './applications.ts'
 import { register as registerDemo } from './demo.ts'
 import { register as registerShare } from './share.ts'
 import { register as registerServe } from './serve.ts'
+import { register as registerCalc } from './calc.ts'
 
 // Registration only: each register() declares a command's options and help, and loads the
 // implementation from cli/actions/ when the command runs. Keep these modules light.
@@ -29,4 +30,5 @@ export function registerCommands(program: Command): void {
   registerDemo(program)
   registerShare(program)
   registerServe(program)
+  registerCalc(program)
 }
