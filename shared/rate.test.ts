@@ -176,6 +176,19 @@ describe('computeRate', () => {
     expect(one.rate).toBeCloseTo(81 / 18, 2)
   })
 
+  it('holds a several-season P application to the N-based rate of this season', () => {
+    const r = computeRate({
+      ...montana,
+      need: { n: 40 },
+      basis: 'p2o5',
+      crop: { name: 'corn_grain', yield_goal: 200, soil_test_p_ppm: 30, soil_test_p_method: 'mehlich3' },
+      following_crops: [{ name: 'soybean', yield_goal: 60 }],
+    } as RateCase)
+    expect(r.limited_by).toBe('n')
+    expect(r.rate).toBeCloseTo(40 / 8.53, 2)
+    expect(r.warnings.map((w) => w.code)).toContain('p_budget_capped_by_n')
+  })
+
   it('gives no P2O5 need above the maintenance limit (Tri-State 2020: above 50 ppm Mehlich-3)', () => {
     const r = computeRate({ ...montana, need: { n: 160 }, crop: { name: 'corn_grain', yield_goal: 180, soil_test_p_ppm: 60, soil_test_p_method: 'mehlich3' } } as RateCase)
     expect(r.need.p2o5).toBe(0)
