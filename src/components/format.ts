@@ -58,6 +58,25 @@ const names: Record<string, string> = {
   lowest: 'lowest rate',
   max_rate: 'rate cap',
   fixed_rate: 'fixed rate',
+  n_model: 'N model',
+  n_first_year_fraction: 'N available this season (share of total N)',
+  ammonium_retention: 'Ammonium-N kept',
+  organic_n_release: 'Organic N released this season',
+  n_year2: 'N released in year 2',
+  n_year3: 'N released in year 3',
+  residual_base: 'Residual N counted from',
+  p2o5_availability: 'P₂O₅ available',
+  k2o_availability: 'K₂O available',
+  overridden: 'Set by the advisor',
+  n_need: 'N need',
+  gross: 'gross',
+  legume_credit: 'legume credit',
+  manure_credit: 'manure credit',
+  other_credit: 'other credit',
+  soil_test_p_class: 'Soil-test P class',
+  soil_test_k_class: 'Soil-test K class',
+  total_n: 'total N',
+  organic_n: 'organic N',
 }
 
 /** A plain name for a stored code (crop, method, storage kind, nutrient); the code itself when unknown. */
@@ -92,4 +111,11 @@ export function warningText(w: unknown): string {
   if (typeof w === 'string') return w
   if (w && typeof w === 'object' && 'message' in w) return String((w as { message: unknown }).message)
   return JSON.stringify(w)
+}
+
+/** Loads for a whole field: a number in older plans, `{ capacity, per_area, field }` in the engine's result. */
+export function loadsOf(loads: unknown): number | null {
+  if (typeof loads === 'number') return loads
+  if (loads && typeof loads === 'object') return num((loads as { field?: unknown }).field)
+  return null
 }

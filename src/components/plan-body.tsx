@@ -2,7 +2,7 @@ import type { ReactNode } from 'react'
 import type { PlanField, PlanStorage, PlanView } from '../../shared/api-types.ts'
 import { Cautions } from './cautions.tsx'
 import { BudgetBar, SupplyChart } from './charts.tsx'
-import { amountUnit, date, dateTime, fmt, label, num, nutrients, rateDigits, warningText } from './format.ts'
+import { amountUnit, date, dateTime, fmt, label, loadsOf, num, nutrients, rateDigits, warningText } from './format.ts'
 
 interface StorageGroup {
   code: string
@@ -117,7 +117,7 @@ function FieldTable({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string
                 ))}
                 <td className="num">{nutrients.map((k) => fmt(f.supplemental?.[k])).join('–')}</td>
                 <td className="num">{fmt(f.total_manure)}</td>
-                <td className="num">{fmt(f.loads)}</td>
+                <td className="num">{fmt(loadsOf(f.loads))}</td>
               </tr>
             )
           })}
@@ -129,7 +129,9 @@ function FieldTable({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string
 
 function factorValue(v: unknown): string {
   if (typeof v === 'number') return Number.isInteger(v) ? String(v) : fmt(v, v < 1 ? 2 : 1)
-  if (typeof v === 'string') return v
+  if (typeof v === 'string') return label(v)
+  if (v === null || v === undefined) return '—'
+  if (Array.isArray(v)) return v.length ? v.map(factorValue).join(', ') : 'none'
   if (v && typeof v === 'object') return Object.entries(v as Record<string, unknown>).map(([k, x]) => `${label(k)} ${factorValue(x)}`).join(', ')
   return '—'
 }
@@ -138,8 +140,11 @@ function sourceText(s: unknown): string {
   if (typeof s === 'string') return s
   if (s && typeof s === 'object') {
     const o = s as Record<string, unknown>
+    if (typeof o.title === 'string') {
+      return [o.title, o.publisher, o.year, o.where].filter((x) => x !== undefined && x !== null && x !== '').join(', ')
+    }
     const what = o.factor ?? o.for ?? o.key ?? o.name
-    const where = o.source ?? o.title ?? o.citation ?? o.reference
+    const where = o.source ?? o.citation ?? o.reference
     if (where) return `${what ? `${label(String(what))}: ` : ''}${typeof where === 'string' ? where : JSON.stringify(where)}${o.table ? `, ${o.table}` : ''}${o.page ? `, p. ${o.page}` : ''}`
   }
   return JSON.stringify(s)
@@ -266,7 +271,7 @@ function PrintSheet({ plan, groups }: { plan: PlanView; groups: StorageGroup[] }
                   <td>{label(f.method)}</td>
                   <td className="num font-semibold">{fmt(f.rate, rateDigits(g.rateUnit))}</td>
                   <td className="num">{fmt(f.total_manure)}</td>
-                  <td className="num">{fmt(f.loads)}</td>
+                  <td className="num">{fmt(loadsOf(f.loads))}</td>
                   <td />
                   <td />
                   <td />

@@ -1,4 +1,5 @@
 import { useQuery } from '@tanstack/react-query'
+import { lazy, Suspense } from 'react'
 import { Link, useParams } from 'react-router'
 import type { PlanView } from '../../shared/api-types.ts'
 import { planQueryOptions, planVersionsQueryOptions } from '../api/queries.ts'
@@ -6,6 +7,9 @@ import { dateTime, fmt } from '../components/format.ts'
 import { Loading } from '../components/layout.tsx'
 import { PlanBody } from '../components/plan-body.tsx'
 import { QueryProblem } from '../components/query-problem.tsx'
+
+// the engine and its reference tables load only when a plan page opens
+const WhatIf = lazy(() => import('../components/what-if.tsx'))
 
 function Versions({ plan }: { plan: PlanView }) {
   const versions = useQuery(planVersionsQueryOptions(String(plan.id)))
@@ -80,6 +84,13 @@ export default function Plan() {
       </div>
       <PlanBody
         plan={p}
+        whatIf={
+          (p.result.fields ?? []).length > 0 && (
+            <Suspense fallback={<Loading what="the rate sandbox" />}>
+              <WhatIf plan={p} />
+            </Suspense>
+          )
+        }
         versions={<Versions plan={p} />}
       />
     </div>

@@ -25,8 +25,8 @@ export interface ViewerDemo {
  */
 export async function buildViewerDemoDatabase(tmp: TempDir): Promise<ViewerDemo> {
   const help = await runCli(['--help'])
-  let dbFile: string
-  let builtBy: ViewerDemo['builtBy']
+  let dbFile = ''
+  let builtBy: ViewerDemo['builtBy'] = 'seed'
   if (/^\s+demo\b/m.test(String(help.stdout))) {
     dbFile = tmp.path('demo.db')
     for (const args of [['init'], ['demo']]) {
@@ -34,7 +34,13 @@ export async function buildViewerDemoDatabase(tmp: TempDir): Promise<ViewerDemo>
       if (r.exitCode !== 0) throw new Error(`pitside ${args.join(' ')} failed (${r.exitCode}): ${String(r.stderr)}`)
     }
     builtBy = 'cli'
-  } else {
+    // a demo that does not compute plans yet (no `pitside plan` in this build) cannot show a plan page
+    const reader = openReader(dbFile)
+    const plans = await reader.db.selectFrom('plans').select((eb) => eb.fn.countAll<number>().as('n')).executeTakeFirstOrThrow()
+    await reader.close()
+    if (Number(plans.n) === 0) builtBy = 'seed'
+  }
+  if (builtBy === 'seed') {
     const temp = await makeTempDatabase()
     await seedViewerDatabase(temp.db)
     await temp.close()

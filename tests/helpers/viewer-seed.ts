@@ -2,6 +2,8 @@ import type { Kysely } from 'kysely'
 import { hashPassword } from '../../shared/db/passwords.ts'
 import type { Database } from '../../shared/db/schema.ts'
 import { insertUser } from '../../shared/db/users.ts'
+import { computeRate } from '../../shared/rate.ts'
+import type { RateCase } from '../../shared/rate-case.ts'
 
 // Invented data for the viewer's tests: two firms (the demo firm and an unrelated one), farms with
 // storages, lab results over three seasons, fields and stored plans whose JSON has the shape that
@@ -100,45 +102,54 @@ export const seedFarms: FarmSeed[] = [
   },
 ]
 
-const retention: Record<string, number> = { injected: 0.95, broadcast_incorporated: 0.75, broadcast: 0.5, irrigated: 0.6 }
-const round = (x: number, digits = 0) => Math.round(x * 10 ** digits) / 10 ** digits
-
-/** A stored-plan field result computed with plain arithmetic from an analysis (invented factors). */
-export function seedFieldResult(field: FieldSeed, storage: StorageSeed, analysis: { total_n: number; ammonium_n: number; p2o5: number; k2o: number }) {
+/** A stored-plan field result: the engine's own output for the field, plus the field's labels. */
+export function seedFieldResult(field: FieldSeed, storage: StorageSeed, analysis: { total_n: number; ammonium_n: number; p2o5: number; k2o: number; dry_matter_pct: number }) {
   const liquid = storage.form === 'liquid'
-  const perUnit = liquid ? 1000 : 1 // analysis is per 1000 gal or per ton
-  const r = retention[field.method] ?? 0.5
-  const organic = analysis.total_n - analysis.ammonium_n
-  const available = { n: analysis.ammonium_n * r + organic * 0.3, p2o5: analysis.p2o5 * 0.8, k2o: analysis.k2o * 0.9 }
-  const [needN, needP, needK] = field.need
-  const rates = { n: (needN / available.n) * perUnit, p2o5: (needP / available.p2o5) * perUnit, k2o: (needK / available.k2o) * perUnit }
-  const rate = round(Math.min(rates.n, rates.p2o5, rates.k2o), liquid ? -1 : 1)
-  const limited = rates.n <= rates.p2o5 && rates.n <= rates.k2o ? 'n' : rates.p2o5 <= rates.k2o ? 'p2o5' : 'k2o'
-  const units = rate / perUnit
-  const supplied = { n: round(available.n * units, 1), p2o5: round(available.p2o5 * units, 1), k2o: round(available.k2o * units, 1) }
-  const totalManure = round(rate * field.acres, liquid ? -2 : 0)
+  const r = computeRate({
+    manure: {
+      form: storage.form,
+      species: storage.species as RateCase['manure']['species'],
+      units: liquid ? 'lb_per_1000gal' : 'lb_per_ton',
+      basis: 'as_is',
+      dry_matter_pct: analysis.dry_matter_pct,
+      total_n: analysis.total_n,
+      ammonium_n: analysis.ammonium_n,
+      p2o5: analysis.p2o5,
+      k2o: analysis.k2o,
+    },
+    application: field.method === 'broadcast_incorporated' ? { method: 'broadcast_incorporated', incorporated_within_hours: 24 } : { method: field.method as 'injected' },
+    need: { n: field.need[0], p2o5: field.need[1], k2o: field.need[2] },
+    basis: 'lowest',
+    units: 'us',
+    acres: field.acres,
+    applicator_capacity: liquid ? 6000 : 15,
+  })
   return {
     field: field.code,
     acres: field.acres,
     crop: field.crop,
     storage: storage.code,
     method: field.method,
-    rate,
-    rate_unit: liquid ? 'gal/ac' : 'ton/ac',
-    limited_by: limited,
-    need: { n: needN, p2o5: needP, k2o: needK },
-    applied: { n: round(analysis.total_n * units, 1), p2o5: round(analysis.p2o5 * units, 1), k2o: round(analysis.k2o * units, 1) },
-    supplied,
-    balance: { n: round(supplied.n - needN, 1), p2o5: round(supplied.p2o5 - needP, 1), k2o: round(supplied.k2o - needK, 1) },
-    supplemental: { n: round(Math.max(0, needN - supplied.n), 1), p2o5: round(Math.max(0, needP - supplied.p2o5), 1), k2o: round(Math.max(0, needK - supplied.k2o), 1) },
-    total_manure: totalManure,
-    loads: Math.ceil(totalManure / (liquid ? 6000 : 15)),
-    warnings: field.method === 'broadcast' ? ['broadcast without incorporation loses much of the ammonium-N'] : [],
-    factors: { ammonium_retention: r, organic_n_release: 0.3, p2o5_availability: 0.8, k2o_availability: 0.9 },
-    sources: [{ factor: 'ammonium_retention', source: 'invented test factor' }],
-    residual_n: { next_season: round(organic * units * 0.1, 1), season_after: round(organic * units * 0.05, 1) },
+    incorporated_within_hours: field.method === 'broadcast_incorporated' ? 24 : null,
+    rate: r.rate,
+    rate_unit: r.rate_unit,
+    limited_by: r.limited_by,
+    need: r.need,
+    applied: r.applied,
+    supplied: r.supplied,
+    balance: r.balance,
+    supplemental: r.supplemental,
+    total_manure: r.total_manure,
+    loads: r.loads,
+    warnings: r.warnings,
+    factors: r.factors,
+    sources: r.sources,
+    residual_n: r.residual_n,
+    reference_set: r.reference_set,
   }
 }
+
+const round = (x: number, digits = 0) => Math.round(x * 10 ** digits) / 10 ** digits
 
 export interface SeedResult {
   organizations: Record<string, number>
@@ -261,13 +272,13 @@ export async function seedViewerDatabase(db: Kysely<Database>): Promise<SeedResu
         farm: farm.code,
         season: 2027,
         version,
-        reference_set: 'test-set',
+        reference_set: fields[0]!.reference_set.name,
         created_at: `2026-11-1${version}T09:00:00.000Z`,
         storages: storages.map(({ seed, analysis }) => ({
           storage: seed.code,
           unit: seed.form === 'liquid' ? 'gal' : 'ton',
           in_storage: seed.inStorage,
-          planned: fields.filter((f) => f.storage === seed.code).reduce((a, f) => a + f.total_manure, 0),
+          planned: fields.filter((f) => f.storage === seed.code).reduce((a, f) => a + (f.total_manure ?? 0), 0),
           samples: 3,
           analysis,
           cv: { total_n: 6.1, ammonium_n: 5.2, p2o5: 9.8, k2o: 4.4 },
@@ -280,8 +291,8 @@ export async function seedViewerDatabase(db: Kysely<Database>): Promise<SeedResu
           farm_id: farmId,
           season: 2027,
           version,
-          reference_set: 'test-set',
-          reference_set_version: '1',
+          reference_set: result.reference_set,
+          reference_set_version: fields[0]!.reference_set.version,
           basis: 'lowest',
           as_of: '2026-11-15',
           inputs: '{}',
@@ -313,9 +324,15 @@ export async function seedViewerDatabase(db: Kysely<Database>): Promise<SeedResu
             supplied_p2o5: f.supplied.p2o5,
             supplied_k2o: f.supplied.k2o,
             total_manure: f.total_manure,
-            loads: f.loads,
+            loads: f.loads?.field ?? null,
             detail: JSON.stringify(f),
             warnings: JSON.stringify(f.warnings),
+            applied_n: f.applied.n,
+            applied_p2o5: f.applied.p2o5,
+            applied_k2o: f.applied.k2o,
+            supplemental_n: f.supplemental.n,
+            supplemental_p2o5: f.supplemental.p2o5,
+            supplemental_k2o: f.supplemental.k2o,
           })
           .execute()
       }
