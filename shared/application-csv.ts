@@ -1,6 +1,6 @@
 import { hasErrors, parseCsvTable, type TableSpec } from './csv-table.ts'
 import { applicationMethods, checkIncorporation, type ApplicationMethod } from './field-csv.ts'
-import { checkUniqueKeys, makeRowReader, optional, type ParsedRows, type RowReader } from './row-reader.ts'
+import { byLine, checkUniqueKeys, makeRowReader, optional, type ParsedRows, type RowReader } from './row-reader.ts'
 import { amountUnits, type AmountUnit } from './storage-csv.ts'
 
 /** What was actually spread on one field on one day from one storage. */
@@ -70,7 +70,7 @@ export function parseApplicationCsv(text: string, options: { today?: string } = 
     'applied_on',
     problems,
   )
-  return { rows: unique, problems }
+  return { rows: unique, problems: byLine(problems) }
 }
 
 function readApplicationRow(r: RowReader, today: string | undefined): ApplicationRow {

@@ -1,6 +1,6 @@
 import { hasErrors, parseCsvTable, type TableSpec } from './csv-table.ts'
 import type { Problem } from './errors.ts'
-import { checkUniqueKeys, makeRowReader, optional, type ParsedRows } from './row-reader.ts'
+import { byLine, checkUniqueKeys, makeRowReader, optional, type ParsedRows } from './row-reader.ts'
 
 /**
  * The farms file: one row per farm, keyed by its code. An optional column that the file leaves out
@@ -61,5 +61,5 @@ export function parseFarmCsv(text: string): ParsedRows<FarmRow> {
     if (!r.failed) rows.push(row)
   })
   const unique = checkUniqueKeys(rows, (f) => f.code, (f) => `farm ${f.code}`, 'farm', problems)
-  return { rows: unique, problems }
+  return { rows: unique, problems: byLine(problems) }
 }

@@ -10,7 +10,7 @@ import {
   type PreviousCrop,
   type SoilTestMethod,
 } from './reference-sets/reference-set.ts'
-import { checkUniqueKeys, makeRowReader, optional, type ParsedRows, type RowReader } from './row-reader.ts'
+import { byLine, checkUniqueKeys, makeRowReader, optional, type ParsedRows, type RowReader } from './row-reader.ts'
 
 // The vocabularies are the reference sets' own, so that what is imported is what the engine reads.
 export const cropCodes = cropNameValues
@@ -165,7 +165,8 @@ export function parseFieldCsv(text: string): ParsedRows<FieldRow> {
     'season',
     problems,
   )
-  return { rows: checkSameFieldEverySeason(unique, problems), problems }
+  const kept = checkSameFieldEverySeason(unique, problems)
+  return { rows: kept, problems: byLine(problems) }
 }
 
 function readFieldRow(r: RowReader): FieldRow {

@@ -208,3 +208,8 @@ export function checkUniqueKeys<T extends { line: number }>(
   return kept
 }
 
+
+/** Problems in file order (stable for one line), as users read them. */
+export function byLine(problems: Problem[]): Problem[] {
+  return problems.map((p, i) => [p, i] as const).sort((a, b) => (a[0].line ?? 0) - (b[0].line ?? 0) || a[1] - b[1]).map(([p]) => p)
+}

@@ -1,6 +1,6 @@
 import { hasErrors, parseCsvTable, type CsvTable, type TableSpec } from './csv-table.ts'
 import type { Problem } from './errors.ts'
-import { checkUniqueKeys, codePattern, makeRowReader, optional, type ParsedRows, type RowReader } from './row-reader.ts'
+import { byLine, checkUniqueKeys, codePattern, makeRowReader, optional, type ParsedRows, type RowReader } from './row-reader.ts'
 
 /** How the sample was taken. */
 export const samplerKinds = ['tube_core', 'dipper', 'bucket_at_pump', 'bucket_at_spreader', 'fork_grab', 'other'] as const
@@ -83,7 +83,7 @@ export function parseSampleCsv(text: string, options: { today?: string } = {}): 
     if (!r.failed) rows.push(row)
   })
   const unique = checkUniqueKeys(rows, (s) => s.sampleCode, (s) => `sample ${s.sampleCode}`, 'sample_id', problems)
-  return { rows: unique, problems }
+  return { rows: unique, problems: byLine(problems) }
 }
 
 function readSampleRow(r: RowReader, today: string | undefined): SampleRow {

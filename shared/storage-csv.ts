@@ -1,6 +1,6 @@
 import { hasErrors, parseCsvTable, type TableSpec } from './csv-table.ts'
 import { speciesValues, type Species } from './reference-sets/reference-set.ts'
-import { checkUniqueKeys, makeRowReader, optional, type ParsedRows, type RowReader } from './row-reader.ts'
+import { byLine, checkUniqueKeys, makeRowReader, optional, type ParsedRows, type RowReader } from './row-reader.ts'
 
 export const storageKinds = ['deep_pit', 'earthen_basin', 'lagoon', 'tank', 'stack', 'other'] as const
 export type StorageKind = (typeof storageKinds)[number]
@@ -146,7 +146,7 @@ export function parseStorageCsv(text: string): ParsedRows<StorageRow> {
     'storage',
     problems,
   )
-  return { rows: unique, problems }
+  return { rows: unique, problems: byLine(problems) }
 }
 
 function checkStorageRow(row: StorageRow, r: RowReader): void {

@@ -7,6 +7,7 @@ import { openWriter, type OpenDatabase } from '../../shared/db/open-database.ts'
 import { insertImportRun, type ImportItem, type PreparedImport, type RecordKind } from '../../shared/db/record-import.ts'
 import type { Database } from '../../shared/db/schema.ts'
 import { AppError, formatProblems, type Problem } from '../../shared/errors.ts'
+import { byLine } from '../../shared/row-reader.ts'
 import type { GlobalOptions } from '../globals.ts'
 import { note, printJson, printTable } from '../output.ts'
 import { readInputText } from '../read-input.ts'
@@ -78,7 +79,7 @@ function refusal(files: { name: string; problems: Problem[] }[]): AppError {
   const parts: string[] = []
   let total = 0
   for (const f of files) {
-    const errors = errorsOf(f.problems)
+    const errors = byLine(errorsOf(f.problems))
     if (!errors.length) continue
     total += errors.length
     parts.push(formatProblems(errors.slice(0, maxProblemsShown), f.name))
@@ -177,7 +178,7 @@ function report(file: LoadedSource, prepared: PreparedImport, outcome: FileRepor
     outcome,
     rows: prepared.items.length,
     ...countItems(prepared.items),
-    warnings: prepared.problems.filter((p) => p.severity === 'warning'),
+    warnings: byLine(prepared.problems.filter((p) => p.severity === 'warning')),
     items: prepared.items,
     importRunId,
   }

@@ -90,7 +90,7 @@ export async function prepareApplicationImport(db: Kysely<Database>, rows: reado
     }
     const storage = storageByKey.get(`${farm.id}\u0000${row.storageCode}`)
     if (!storage) {
-      const known = storages.filter((s) => s.farm_id === farm.id).map((s) => s.code)
+      const known = storages.filter((s) => s.farm_id === farm.id).map((s) => s.code).sort()
       problems.push({ code: 'unknown_storage', line: row.line, column: 'storage', message: `storage ${row.storageCode} is not a storage of farm ${farm.code} (known: ${known.join(', ') || 'none'})` })
       continue
     }

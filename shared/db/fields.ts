@@ -191,7 +191,7 @@ export async function prepareFieldImport(db: Kysely<Database>, rows: readonly Fi
     if (row.storageCode) {
       storage = storageByKey.get(`${farm.id}\u0000${row.storageCode}`)
       if (!storage) {
-        const known = storages.filter((s) => s.farm_id === farm.id).map((s) => s.code)
+        const known = storages.filter((s) => s.farm_id === farm.id).map((s) => s.code).sort()
         problems.push({
           code: 'unknown_storage',
           line: row.line,

@@ -109,7 +109,7 @@ export async function prepareSampleImport(db: Kysely<Database>, rows: readonly S
     if (!farm) continue
     const storage = storageByKey.get(`${farm.id}\u0000${row.storageCode}`)
     if (!storage) {
-      const known = storages.filter((s) => s.farm_id === farm.id).map((s) => s.code)
+      const known = storages.filter((s) => s.farm_id === farm.id).map((s) => s.code).sort()
       problems.push({
         code: 'unknown_storage',
         line: row.line,
