@@ -1,10 +1,15 @@
-import { listReferenceSets } from '../../shared/reference-sets/registry.ts'
+import { findReferenceSet, listReferenceSets } from '../../shared/reference-sets/registry.ts'
 import type { ActionModule } from '../lazy.ts'
 import { printJson } from '../output.ts'
 import { readReferenceFile } from './calc-input.ts'
 
 export const run: ActionModule['run'] = async ({ options, globals: g }) => {
-  const sets = [...(options.referenceFile ? [await readReferenceFile(options.referenceFile as string)] : []), ...listReferenceSets()]
+  const own = options.referenceFile ? [await readReferenceFile(options.referenceFile as string)] : []
+  if (options.export !== undefined) {
+    printJson(findReferenceSet(options.export as string, own))
+    return
+  }
+  const sets = [...own, ...listReferenceSets()]
   if (g.json) {
     printJson(sets.map((s) => ({ name: s.name, version: s.version, title: s.title, n_model: s.nitrogen.model, sources: s.sources })))
     return

@@ -25,6 +25,7 @@ Exit codes: 0 computed, 65 the case or reference file was refused, 66 a file doe
     .command('sets')
     .description('list the reference sets with their sources')
     .option('--reference-file <file>', 'also check and list a reference set of your own (JSON)')
+    .option('--export <name>', 'print one set in full as JSON, to start a set of your own from')
     .action(lazyAction(() => import('../actions/calc-sets.ts')))
 
   calc

@@ -81,9 +81,9 @@ describe('pitside calc rate', () => {
     tmp = makeTempDir()
     const sets = json(await runCli(['--json', 'calc', 'sets']))
     expect(sets.map((s: { name: string }) => s.name)).toEqual(['alberta-retention-release', 'umn-pct-total-n'])
-    // start from a built-in set (printed by the library through the calculator's own module)
-    const { findReferenceSet } = await import('../../shared/reference-sets/registry.ts')
-    const own = { ...findReferenceSet('umn-pct-total-n'), name: 'county-2027', p2o5_availability: [{ species: 'any', form: 'any', value: 1, source: 'umn-guidelines' }] }
+    // start from a built-in set, as the README says
+    const exported = json(await runCli(['calc', 'sets', '--export', 'umn-pct-total-n']))
+    const own = { ...exported, name: 'county-2027', p2o5_availability: [{ species: 'any', form: 'any', value: 1, source: 'umn-guidelines' }] }
     writeFileSync(tmp.path('own.json'), JSON.stringify(own))
     const c = JSON.parse((await import('node:fs')).readFileSync(fixture('montana-cnmp-step5.json'), 'utf8'))
     c.reference_set = 'county-2027'
