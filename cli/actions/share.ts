@@ -57,7 +57,9 @@ export interface CreatedShare {
   outboxFile: string | null
 }
 
-const emailPattern = /^[^\s@]+@[^\s@]+\.[^\s@]+$/
+// One plain address: no characters that address lists, comments, display names or headers give meaning to
+// (a comma or parentheses would make the mailer read a list or a name instead of what was stored).
+const emailPattern = /^[^\s@,;:<>()[\]"\\\x00-\x1f\x7f]+@[^\s@,;:<>()[\]"\\\x00-\x1f\x7f]+\.[^\s@,;:<>()[\]"\\\x00-\x1f\x7f]+$/
 
 /** Creates a share link to one plan and e-mails it. The link row is removed again if the mail cannot be sent. */
 export async function createShare(
