@@ -64,7 +64,9 @@ export interface CropNeed {
   k2oRemoval: number | null
   pClass: SoilTestClass | null
   kClass: SoilTestClass | null
+  /** Sources of every number used; `nSourceIds` are those behind the N need alone. */
   sourceIds: string[]
+  nSourceIds: string[]
   warnings: { code: string; message: string; nutrient?: 'n' | 'p2o5' | 'k2o' }[]
 }
 
@@ -102,7 +104,7 @@ export function computeCropNeed(input: CropNeedInput, set: ReferenceSet): CropNe
   const crop = findCrop(set, input.name)
   if (!crop) {
     warnings.push({ code: 'unknown_crop', message: `reference set ${set.name} has no crop ${input.name}` })
-    return { n: null, p2o5: null, k2o: null, nGross: null, nCredits: credits, p2o5Removal: null, k2oRemoval: null, pClass: null, kClass: null, sourceIds, warnings }
+    return { n: null, p2o5: null, k2o: null, nGross: null, nCredits: credits, p2o5Removal: null, k2oRemoval: null, pClass: null, kClass: null, sourceIds, nSourceIds: [], warnings }
   }
   const prev = input.previousCrop
 
@@ -136,6 +138,7 @@ export function computeCropNeed(input: CropNeedInput, set: ReferenceSet): CropNe
     }
   }
   const n = nGross === null ? null : Math.max(0, nGross - credits.legume - credits.manure - credits.other)
+  const nSourceIds = [...sourceIds]
 
   const removal = computeCropRemoval(crop, input.yieldGoal)
   sourceIds.push(crop.removal.source)
@@ -187,6 +190,7 @@ export function computeCropNeed(input: CropNeedInput, set: ReferenceSet): CropNe
     pClass: p.cls,
     kClass: k.cls,
     sourceIds: [...new Set(sourceIds)],
+    nSourceIds: [...new Set(nSourceIds)],
     warnings,
   }
 }

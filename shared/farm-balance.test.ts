@@ -27,6 +27,13 @@ describe('computeFarmBalance', () => {
     expect(b.value!.perUnit.total).toBeCloseTo(18 + 14 + 11.25, 9)
     expect(b.value!.stored).toBeCloseTo(43.25 * 800, 6)
   })
+  it('measures a storage given by geometry and manure depth', () => {
+    const b = computeFarmBalance({
+      ...input,
+      storages: [{ name: 'tank', geometry: { geometry: { shape: 'rectangular', length: 100, width: 40, depth: 10 }, units: 'us', manureDepth: 5 } }],
+    })
+    expect(b.stored).toBeCloseTo(20000 * 7.4805, 0) // 100 × 40 × 5 ft³ at 7.4805 gal/ft³
+  })
   it('refuses a negative amount naming the storage', () => {
     expect(() => computeFarmBalance({ ...input, storages: [{ name: 'x', amount: -1 }] })).toThrow('storages.0.amount')
   })

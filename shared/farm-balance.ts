@@ -1,10 +1,11 @@
 import { AppError } from './errors.ts'
+import { computeStorageVolume, type StorageInput } from './storage.ts'
 
-/** One storage: its amount now (gal or ton; L or t in metric), from geometry or a record. */
-export interface FarmStorage {
-  name: string
-  amount: number
-}
+/**
+ * One storage: its amount now (gal or ton; L or t in metric) as recorded, or its geometry with the
+ * measured manure depth (the usable volume without a depth; solids need a bulk density).
+ */
+export type FarmStorage = { name: string; amount: number } | { name: string; geometry: StorageInput }
 
 /** One planned application: area (ac or ha) and rate (gal/ac or ton/ac; L/ha or t/ha). */
 export interface FarmPlannedField {
@@ -50,14 +51,27 @@ export interface FarmBalance {
  * Farm-level balance: manure in storage against manure planned, area needed at the typical
  * rate against area available, and the value of the manure's available nutrients at fertilizer
  * prices (available nutrient × price; value of available rather than total nutrients is common
- * practice). Pure arithmetic; units as given (us or metric). Throws AppError('invalid_input')
- * for negative amounts, areas or rates.
+ * practice). Pure arithmetic; units as given (us or metric). Storages given by geometry are
+ * measured with computeStorageVolume. Throws AppError('invalid_input') for negative amounts,
+ * areas or rates, impossible geometry, or a solid storage by geometry without a bulk density.
  */
 export function computeFarmBalance(input: FarmBalanceInput): FarmBalance {
   const check = (name: string, v: number) => {
     if (!(Number.isFinite(v) && v >= 0)) throw new AppError('invalid_input', `${name}: expected a number of 0 or more, found ${v}`)
   }
-  input.storages.forEach((s, i) => check(`storages.${i}.amount`, s.amount))
+  const amounts = input.storages.map((s, i) => {
+    if ('amount' in s) {
+      check(`storages.${i}.amount`, s.amount)
+      return s.amount
+    }
+    const v = computeStorageVolume(s.geometry)
+    const a = v.contents ?? v.usable
+    if (input.form === 'solid') {
+      if (a.mass === null) throw new AppError('invalid_input', `storages.${i}: a solid storage measured by geometry needs bulk_density`)
+      return a.mass
+    }
+    return s.geometry.units === 'metric' ? a.litres : a.gal
+  })
   input.planned.forEach((p, i) => {
     check(`planned.${i}.area`, p.area)
     check(`planned.${i}.rate`, p.rate)
@@ -65,7 +79,7 @@ export function computeFarmBalance(input: FarmBalanceInput): FarmBalance {
   check('area_available', input.areaAvailable)
   const liquid = input.form === 'liquid'
   const perUnitSize = liquid ? 1000 : 1 // nutrients are per 1000 gal (per m³ = 1000 L) or per ton (t)
-  const stored = input.storages.reduce((s, x) => s + x.amount, 0)
+  const stored = amounts.reduce((s, x) => s + x, 0)
   const plannedAmount = input.planned.reduce((s, p) => s + p.area * p.rate, 0)
   const plannedArea = input.planned.reduce((s, p) => s + p.area, 0)
   const typicalRate = input.typicalRate ?? (plannedArea > 0 ? plannedAmount / plannedArea : null)

@@ -176,7 +176,8 @@ export function computeRate(c: RateCase, options: { referenceSet?: ReferenceSet 
       },
       set,
     )
-    sourceIds.push(...cropNeed.sourceIds)
+    const nOnly = new Set(cropNeed.nSourceIds)
+    sourceIds.push(...cropNeed.sourceIds.filter((id) => c.need?.n === undefined || !nOnly.has(id)))
     need.n = cropNeed.n
     need.p2o5 = cropNeed.p2o5
     need.k2o = cropNeed.k2o
