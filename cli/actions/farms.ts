@@ -1,5 +1,6 @@
 import { listFarms, prepareFarmImport } from '../../shared/db/farms.ts'
-import { resolveOrganization } from '../../shared/db/users.ts'
+import { findOrganizationByCode, resolveOrganization } from '../../shared/db/users.ts'
+import { AppError } from '../../shared/errors.ts'
 import { parseFarmCsv } from '../../shared/farm-csv.ts'
 import type { ActionModule } from '../lazy.ts'
 import { note, printJson, printTable } from '../output.ts'
@@ -16,21 +17,32 @@ import {
 export interface FarmImportOptions extends ImportOptions {
   /** Organization code; defaults to the only organization in the database. */
   org?: string
+  /** Creates the organization `org` with this name when it does not exist (after the files check out). */
+  orgName?: string
 }
 
 /** The core of `pitside farms import`, callable in-process. */
 export async function importFarms(deps: ImportDeps, files: readonly ImportSource[], options: FarmImportOptions = {}): Promise<ImportReport> {
-  const organization = await resolveOrganization(deps.db, { code: options.org })
-  return runRecordImport(deps, 'farms', files, options, async (text) => {
-    const parsed = parseFarmCsv(text)
-    const prepared = await prepareFarmImport(deps.db, parsed.rows, organization)
-    return { ...prepared, problems: [...parsed.problems, ...prepared.problems] }
-  })
+  const run = (organization: { id: number; code: string }, o: ImportOptions) =>
+    runRecordImport(deps, 'farms', files, o, async (text) => {
+      const parsed = parseFarmCsv(text)
+      const prepared = await prepareFarmImport(deps.db, parsed.rows, organization)
+      return { ...prepared, problems: [...parsed.problems, ...prepared.problems] }
+    })
+  if (options.org && options.orgName && !(await findOrganizationByCode(deps.db, options.org))) {
+    // checked against the organization-to-be first, so that a refused file creates nothing
+    const planned = { id: -1, code: options.org }
+    const check = await run(planned, { ...options, dryRun: true })
+    if (options.dryRun) return check
+    return run(await resolveOrganization(deps.db, { code: options.org, createName: options.orgName }), options)
+  }
+  if (options.orgName && !options.org) throw new AppError('usage', '--org-name needs --org <code> for the new organization')
+  return run(await resolveOrganization(deps.db, { code: options.org }), options)
 }
 
 export const runImport: ActionModule['run'] = async ({ args, options, globals: g }) => {
   const report = await withDatabase(g.db, (deps) =>
-    importFarms(deps, args[0] as string[], { dryRun: options.dryRun, org: options.org }),
+    importFarms(deps, args[0] as string[], { dryRun: options.dryRun, org: options.org, orgName: options.orgName }),
   )
   printImportReport(g, report)
 }

@@ -65,6 +65,15 @@ describe('importFarms (in-process core)', () => {
     })
   })
 
+  it('creates a new organization only once its first farms file checks out', async () => {
+    await expect(importFarms(t, [fixture('one-bad-row.csv')], { org: 'heron', orgName: 'Heron Agronomy' })).rejects.toMatchObject({ code: 'invalid_input' })
+    expect(count(t, 'organizations')).toBe(1)
+    const r = await importFarms(t, [{ name: 'h.csv', text: 'farm,name\nHRX,Heron Ridge\n' }], { org: 'heron', orgName: 'Heron Agronomy' })
+    expect(r.files[0]).toMatchObject({ new: 1 })
+    const farm = t.sqlite.prepare("select o.code from farms f join organizations o on o.id = f.organization_id where f.code = 'HRX'").get()
+    expect(farm).toEqual({ code: 'heron' })
+  })
+
   it('refuses a code that differs from a stored one only in case', async () => {
     await importFarms(t, [fixture('farms.csv')])
     await expect(importFarms(t, [{ name: 'x.csv', text: 'farm,name\nbwa,Lower case\n' }])).rejects.toMatchObject({
