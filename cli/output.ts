@@ -21,6 +21,8 @@ export function formatTable<T>(rows: readonly T[], columns: readonly Column<T>[]
   const table = new Table({
     head: columns.map((c) => c.header),
     style: { head: [], border: [] },
+    // no rule between body rows: long tables stay readable in a terminal and in a pasted e-mail
+    chars: { mid: '', 'left-mid': '', 'mid-mid': '', 'right-mid': '' },
     colAligns: columns.map((c) => c.align ?? 'left'),
   })
   for (const row of rows) {
