@@ -139,19 +139,15 @@ export async function insertUser(db: Kysely<Database>, input: NewUser): Promise<
   if (input.role === 'client' && farmCodes.length === 0) {
     throw new AppError('usage', 'a client needs at least one --farm <code> to see')
   }
-  let passwordHash = input.passwordHash
-  if (passwordHash === undefined) {
-    if (input.password === undefined) throw new AppError('usage', 'a new account needs a password')
-    checkPassword(input.password)
-    passwordHash = await hashPassword(input.password)
-  }
-  const hash = passwordHash
-
-  return db.transaction().execute(async (trx) => {
-    const org = await resolveOrganization(trx, { code: input.organizationCode, createName: input.organizationName })
+  if (input.passwordHash === undefined && input.password !== undefined) checkPassword(input.password)
+  // every check that can fail runs before the slow password hash, and again inside the transaction
+  const checkAgainstStore = async (trx: Kysely<Database>, create: boolean) => {
+    const org = create
+      ? await resolveOrganization(trx, { code: input.organizationCode, createName: input.organizationName })
+      : await resolveOrganizationReadOnly(trx, input.organizationCode, input.organizationName)
     const taken = await trx.selectFrom('users').select('id').where('email', '=', email).executeTakeFirst()
     if (taken) throw new AppError('conflict', `an account for ${email} already exists; use \`pitside users passwd\` to change its password`)
-    const farms = farmCodes.length
+    const farms = farmCodes.length && org.id >= 0
       ? await trx
           .selectFrom('farms')
           .select(['id', 'code'])
@@ -163,6 +159,20 @@ export async function insertUser(db: Kysely<Database>, input: NewUser): Promise<
     if (missing.length) {
       throw new AppError('not_found', `farm ${missing.join(', ')} not found in organization ${org.code}`)
     }
+    return { org, farms }
+  }
+  await checkAgainstStore(db, false)
+
+  let passwordHash = input.passwordHash
+  if (passwordHash === undefined) {
+    if (input.password === undefined) throw new AppError('usage', 'a new account needs a password')
+    checkPassword(input.password)
+    passwordHash = await hashPassword(input.password)
+  }
+  const hash = passwordHash
+
+  return db.transaction().execute(async (trx) => {
+    const { org, farms } = await checkAgainstStore(trx, true)
     const { id } = await trx
       .insertInto('users')
       .values({ organization_id: org.id, email, name, role: input.role, password_hash: hash })
@@ -174,6 +184,12 @@ export async function insertUser(db: Kysely<Database>, input: NewUser): Promise<
     const user = await findUserById(trx, id)
     return user!
   })
+}
+
+/** Like resolveOrganization, but never creates: an organization still to be created has id -1. */
+async function resolveOrganizationReadOnly(db: Kysely<Database>, code: string | undefined, createName: string | undefined): Promise<Organization> {
+  if (code && createName && !(await findOrganizationByCode(db, code))) return { id: -1, code, name: createName }
+  return resolveOrganization(db, { code, createName: code ? undefined : createName })
 }
 
 function selectUsers(db: Kysely<Database>) {

@@ -27,7 +27,8 @@ export async function buildViewerDemoDatabase(tmp: TempDir): Promise<ViewerDemo>
   const help = await runCli(['--help'])
   let dbFile = ''
   let builtBy: ViewerDemo['builtBy'] = 'seed'
-  if (/^\s+demo\b/m.test(String(help.stdout))) {
+  // the demo computes plans only once the CLI has `pitside plan`
+  if (/^\s+demo\b/m.test(String(help.stdout)) && /^\s+plan\b/m.test(String(help.stdout))) {
     dbFile = tmp.path('demo.db')
     for (const args of [['init'], ['demo']]) {
       const r = await runCli(['--db', dbFile, '--quiet', ...args])

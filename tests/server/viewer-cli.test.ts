@@ -59,8 +59,9 @@ describe('pitside users', () => {
       [['--email', 'x@y.example', '--name', 'X', '--role', 'client', '--org', 'loamridge'], 'password1', 64, /a client needs at least one --farm/],
       [['--email', 'x@y.example', '--name', 'X', '--role', 'owner', '--org', 'loamridge'], 'password1', 64, /Allowed choices are advisor, client/],
     ]
-    for (const [args, password, code, message] of cases) {
-      const r = await runCli(['--db', db, 'users', 'add', ...args, '--password-stdin'], { input: password })
+    const results = await Promise.all(cases.map(([args, password]) => runCli(['--db', db, 'users', 'add', ...args, '--password-stdin'], { input: password })))
+    for (const [i, [args, , code, message]] of cases.entries()) {
+      const r = results[i]!
       expect(r.exitCode, args.join(' ') + ': ' + String(r.stderr)).toBe(code)
       expect(r.stderr).toMatch(message)
       expect(r.stderr).not.toMatch(/\bat .*\.js:\d+/)
@@ -116,8 +117,9 @@ describe('pitside share', () => {
       [['share', id, '--to', 'a@b.example'], { ...env, PITSIDE_SECRET: 'c2hvcnQ' }, 78, /PITSIDE_SECRET: expected at least 256 bits/],
       [['share', 'revoke', 'no-such-link'], env, 66, /no share link no-such-link/],
     ]
-    for (const [args, e, code, message] of cases) {
-      const r = await runCli(['--db', db, ...args], { env: e })
+    const results = await Promise.all(cases.map(([args, e]) => runCli(['--db', db, ...args], { env: e })))
+    for (const [i, [args, , code, message]] of cases.entries()) {
+      const r = results[i]!
       expect(r.exitCode, args.join(' ') + ': ' + String(r.stderr)).toBe(code)
       expect(r.stderr).toMatch(message)
     }
