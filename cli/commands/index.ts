@@ -2,6 +2,7 @@ import type { Command } from 'commander'
 import { register as registerBackup } from './backup.ts'
 import { register as registerCheck } from './check.ts'
 import { register as registerInit } from './init.ts'
+import { register as registerLabs } from './labs.ts'
 import { register as registerRestore } from './restore.ts'
 import { register as registerUsers } from './users.ts'
 import { register as registerFarms } from './farms.ts'
@@ -18,6 +19,7 @@ import { register as registerCalc } from './calc.ts'
 // implementation from cli/actions/ when the command runs. Keep these modules light.
 export function registerCommands(program: Command): void {
   registerInit(program)
+  registerLabs(program)
   registerBackup(program)
   registerRestore(program)
   registerCheck(program)

@@ -1,0 +1,31 @@
+import { existsSync } from 'node:fs'
+import { openReader, openWriter, type OpenDatabase } from '../../shared/db/open-database.ts'
+import { AppError } from '../../shared/errors.ts'
+
+/**
+ * Opens the database for the advisor commands (labs, plan, plans, export, records) and checks that
+ * `pitside init` has created its tables, so that a wrong `--db` path gets a clear message instead
+ * of an empty new file and an SQL error.
+ */
+export function openAdvisorDb(file: string, mode: 'write' | 'read' = 'write'): OpenDatabase {
+  if (!existsSync(file)) {
+    throw new AppError('database', `database ${file} does not exist: run \`pitside --db ${file} init\` first (or give the right --db)`)
+  }
+  const opened = mode === 'write' ? openWriter(file) : openReader(file)
+  const ok = opened.sqlite.prepare(`select 1 from sqlite_master where type = 'table' and name = 'plans'`).get()
+  if (!ok) {
+    opened.sqlite.close()
+    throw new AppError('database', `${file} has no Pitside tables: run \`pitside --db ${file} init\` first (or give the right --db)`)
+  }
+  return opened
+}
+
+/** Runs body with an open database and closes it afterwards, whatever happens. */
+export async function withAdvisorDb<T>(file: string, mode: 'write' | 'read', body: (opened: OpenDatabase) => Promise<T> | T): Promise<T> {
+  const opened = openAdvisorDb(file, mode)
+  try {
+    return await body(opened)
+  } finally {
+    await opened.close()
+  }
+}
