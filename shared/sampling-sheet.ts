@@ -74,7 +74,7 @@ export const liquidChecklist: readonly ChecklistItem[] = [
 
 export const solidChecklist: readonly ChecklistItem[] = [
   { text: 'Take 15–25 subsamples from spots all over the pile and from inside it, not only the crust.', source: wsda },
-  { text: 'Combine them in the clean bucket, break up lumps and mix well before filling the bottle or bag.', source: alberta },
+  { text: 'Combine them in the clean bucket, break up lumps and mix well before filling the bottle or bag.', source: 'common practice' },
 ]
 
 export const afterSamplingChecklist: readonly ChecklistItem[] = [
