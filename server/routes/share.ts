@@ -9,7 +9,7 @@ import type { PlanCache } from '../plan-cache.ts'
 
 /** Headers for anything that carries a share token: never cached, never sent on as a referrer. */
 export const shareHeaders: RequestHandler = (_req, res, next) => {
-  res.set('Cache-Control', 'no-store').set('Referrer-Policy', 'no-referrer')
+  res.set('Cache-Control', 'no-store').set('Referrer-Policy', 'no-referrer').set('X-Robots-Tag', 'noindex, nofollow')
   next()
 }
 

@@ -48,12 +48,12 @@ export function Shell({ user, children }: { user?: SessionUser; children: ReactN
             <div className="flex items-center gap-3 text-sm">
               <span>
                 <span className="font-semibold">{user.name}</span>
-                <span className="text-muted"> · {user.role === 'advisor' ? user.organization.name : 'client'}</span>
+                <span className="hidden text-muted sm:inline"> · {user.role === 'advisor' ? user.organization.name : 'client'}</span>
               </span>
               <button
                 type="button"
                 onClick={() => signOut.mutate()}
-                className="rounded-md border border-ink px-3 py-1.5 font-semibold hover:bg-accent-soft"
+                className="whitespace-nowrap rounded-md border border-ink px-3 py-1.5 font-semibold hover:bg-accent-soft"
               >
                 Sign out
               </button>

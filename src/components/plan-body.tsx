@@ -69,10 +69,52 @@ function SuppliedNeed({ f, k }: { f: PlanField; k: (typeof nutrients)[number] })
   )
 }
 
+/** The same rows as cards, for a phone at the field edge. */
+function FieldCards({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
+  const rd = rateDigits(g.rateUnit)
+  return (
+    <ul className="space-y-2 sm:hidden">
+      {g.fields.map((f) => (
+        <li key={f.field} className="rounded-md border border-line bg-surface p-3">
+          <div className="flex items-baseline justify-between gap-2">
+            <span className="font-semibold">
+              {f.field}
+              {fieldNames.get(f.field) && <span className="font-normal text-muted"> · {fieldNames.get(f.field)}</span>}
+            </span>
+            <span className="num text-lg font-semibold">
+              {fmt(f.rate, rd)} <span className="font-sans text-sm font-normal">{g.rateUnit}</span>
+            </span>
+          </div>
+          <p className="text-sm text-muted">
+            {fmt(f.acres, 1)} ac · {label(f.crop)} · {label(f.method)} · limited by {label(f.limited_by)}
+          </p>
+          <dl className="mt-2 grid grid-cols-3 gap-2 text-sm">
+            {nutrients.map((k) => (
+              <div key={k}>
+                <dt className="text-muted">{label(k)} lb/ac</dt>
+                <dd className="num text-left">
+                  {fmt(f.supplied?.[k])} <span className="text-muted">/ {fmt(f.need?.[k])}</span>
+                </dd>
+              </div>
+            ))}
+          </dl>
+          <p className="mt-2 text-sm">
+            Total <span className="num">{fmt(f.total_manure)}</span> {g.amountUnit} · <span className="num">{fmt(loadsOf(f.loads))}</span> loads · fertilizer still needed{' '}
+            <span className="num">{nutrients.map((k) => fmt(f.supplemental?.[k])).join('–')}</span> lb/ac
+          </p>
+          {(f.warnings ?? []).map((w) => (
+            <p key={warningText(w)} className="mt-1 text-sm text-danger">⚠ {warningText(w)}</p>
+          ))}
+        </li>
+      ))}
+    </ul>
+  )
+}
+
 function FieldTable({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
   const rd = rateDigits(g.rateUnit)
   return (
-    <div className="overflow-x-auto rounded-md border border-line bg-surface" tabIndex={0} role="region" aria-label={`Field rates from ${g.code}`}>
+    <div className="hidden overflow-x-auto rounded-md border border-line bg-surface sm:block" tabIndex={0} role="region" aria-label={`Field rates from ${g.code}`}>
       <table className="data min-w-[56rem]">
         <caption className="sr-only">Fields drawing from {storageTitle(g)}: rate, method and nutrients</caption>
         <thead>
@@ -319,6 +361,7 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
           {groups.map((g) => (
             <div key={g.code}>
               <h3 className="mb-2 font-semibold">From {storageTitle(g)}</h3>
+              <FieldCards g={g} fieldNames={fieldNames} />
               <FieldTable g={g} fieldNames={fieldNames} />
             </div>
           ))}

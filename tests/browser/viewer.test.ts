@@ -88,6 +88,8 @@ describe('the viewer in a browser', () => {
     await shot(page, 'plan-phone.png')
     await page.evaluate(() => window.scrollTo(0, 0))
     await shot(page, 'plan-phone-top.png', false)
+    await page.getByRole('heading', { name: 'Field rates' }).scrollIntoViewIfNeeded()
+    await shot(page, 'plan-phone-rates.png', false)
     await page.getByRole('heading', { name: 'Supply against need' }).scrollIntoViewIfNeeded()
     await shot(page, 'plan-phone-chart.png', false)
     await page.setViewportSize({ width: 1280, height: 800 })
