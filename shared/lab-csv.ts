@@ -397,7 +397,8 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
       if (required) err(column, 'missing', 'is empty (a number is required)')
       return null
     }
-    if (plainNumber.test(raw)) {
+    // in a decimal-comma file "6.240" is a thousands separator (or ambiguous), never 6.24
+    if (plainNumber.test(raw) && (decimal === '.' || raw.indexOf('.') === -1)) {
       reported += (reported === '' ? '"' : ',"') + column + '":"' + raw + '"'
       return Number(raw)
     }
