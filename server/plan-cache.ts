@@ -1,4 +1,5 @@
 import { createHash } from 'node:crypto'
+import { gzipSync } from 'node:zlib'
 import type { Kysely } from 'kysely'
 import type { Database } from '../shared/db/schema.ts'
 import { findPlanView, type PlanOwner } from '../shared/db/viewer-queries.ts'
@@ -7,6 +8,8 @@ export interface CachedPlan {
   owner: PlanOwner
   /** The PlanView serialized once: plans are never updated, so the text stays right. */
   json: string
+  /** The same text gzipped once, for clients that accept it (a 200-field plan shrinks about tenfold). */
+  gzip: Buffer
   etag: string
 }
 
@@ -35,7 +38,7 @@ export class PlanCache {
     if (!found) return undefined // not cached: the plan may be written later
     const { owner, ...view } = found
     const json = JSON.stringify(view)
-    const entry = { owner, json, etag: `"p${planId}-${createHash('sha1').update(json).digest('base64url').slice(0, 16)}"` }
+    const entry = { owner, json, gzip: gzipSync(json), etag: `"p${planId}-${createHash('sha1').update(json).digest('base64url').slice(0, 16)}"` }
     if (this.entries.size >= this.maxEntries) this.entries.delete(this.entries.keys().next().value!)
     this.entries.set(planId, entry)
     return entry

@@ -1,7 +1,9 @@
-import { existsSync, readFileSync } from 'node:fs'
-import { join } from 'node:path'
+import { existsSync, readdirSync, readFileSync } from 'node:fs'
+import { extname, join } from 'node:path'
+import { gzipSync } from 'node:zlib'
 import { fileURLToPath } from 'node:url'
 import express, { Router } from 'express'
+import { acceptsGzip } from './routes/plans.ts'
 import { shareHeaders } from './routes/share.ts'
 
 /** The built client: dist/web beside the compiled server, or under the repository when run from source. */
@@ -16,6 +18,26 @@ export function findWebDir(): string | null {
 const notBuilt = `<!doctype html><meta charset="utf-8"><title>Pitside</title>
 <p>The viewer's pages are not built yet. Run <code>npm run build</code>, then start <code>pitside serve</code> again.</p>`
 
+interface Asset {
+  type: string
+  body: Buffer
+  gzip: Buffer | null
+}
+
+const compressible = new Set(['.js', '.css', '.svg', '.json', '.html', '.map', '.txt'])
+
+/** The hashed build output, held in memory with a gzipped copy of each text file (they never change while serving). */
+function loadAssets(dir: string): Map<string, Asset> {
+  const out = new Map<string, Asset>()
+  if (!existsSync(dir)) return out
+  for (const name of readdirSync(dir)) {
+    const body = readFileSync(join(dir, name))
+    const ext = extname(name)
+    out.set(name, { type: ext || 'application/octet-stream', body, gzip: compressible.has(ext) ? gzipSync(body, { level: 9 }) : null })
+  }
+  return out
+}
+
 /** Serves the client: hashed assets cached for a year, every other path answered by index.html (client routing). */
 export function webRoutes(webDir: string | null): Router {
   const router = Router()
@@ -26,10 +48,17 @@ export function webRoutes(webDir: string | null): Router {
     return router
   }
   const index = readFileSync(join(webDir, 'index.html'))
-  router.use(
-    '/assets',
-    express.static(join(webDir, 'assets'), { immutable: true, maxAge: '365d', index: false, fallthrough: false }),
-  )
+  const assets = loadAssets(join(webDir, 'assets'))
+  router.get('/assets/{*splat}', (req, res, next) => {
+    const asset = assets.get(req.path.slice('/assets/'.length))
+    if (!asset) return next()
+    res.set('Cache-Control', 'public, max-age=31536000, immutable').set('Vary', 'Accept-Encoding').type(asset.type)
+    if (asset.gzip && acceptsGzip(req.headers['accept-encoding'])) res.set('Content-Encoding', 'gzip').send(asset.gzip)
+    else res.send(asset.body)
+  })
+  router.use('/assets', (_req, res) => {
+    res.status(404).type('text').send('not found')
+  })
   router.use(express.static(webDir, { index: false, maxAge: '1h' }))
   const sendIndex: express.RequestHandler = (_req, res) => {
     if (!res.get('Cache-Control')) res.set('Cache-Control', 'no-cache')

@@ -7,6 +7,17 @@ import { AppError } from '../../shared/errors.ts'
 import type { Sessions } from '../auth.ts'
 import type { PlanCache } from '../plan-cache.ts'
 
+/** True when the client takes gzip (and has not refused it with q=0). */
+export function acceptsGzip(header: string | undefined): boolean {
+  if (!header) return false
+  return header.split(',').some((part) => {
+    const [coding, ...params] = part.trim().split(';')
+    if (coding!.trim().toLowerCase() !== 'gzip') return false
+    const q = params.map((p) => p.trim()).find((p) => p.startsWith('q='))
+    return q === undefined || Number(q.slice(2)) > 0
+  })
+}
+
 /** A plan id from the path; anything else is simply a plan that does not exist. */
 export function parsePlanId(text: string): number | null {
   return /^[1-9]\d{0,11}$/.test(text) ? Number(text) : null
@@ -28,12 +39,14 @@ export function planRoutes({ db, sessions, plans }: { db: Kysely<Database>; sess
   router.get('/:id', async (req, res) => {
     const { viewer } = await sessions.require(req)
     const plan = await visiblePlan(req.params.id, viewer)
-    res.set('Cache-Control', 'private, no-cache').set('ETag', plan.etag)
+    res.set('Cache-Control', 'private, no-cache').set('ETag', plan.etag).set('Vary', 'Accept-Encoding, Cookie')
     if (req.headers['if-none-match'] === plan.etag) {
       res.status(304).end()
       return
     }
-    res.type('application/json').send(plan.json)
+    res.type('application/json')
+    if (acceptsGzip(req.headers['accept-encoding'])) res.set('Content-Encoding', 'gzip').send(plan.gzip)
+    else res.send(plan.json)
   })
 
   router.get('/:id/versions', async (req, res) => {

@@ -34,6 +34,8 @@ export async function makeViewerFixture(overrides: Partial<AppDeps> = {}): Promi
   const webDir = temp.tmp.path('web')
   mkdirSync(webDir, { recursive: true })
   writeFileSync(`${webDir}/index.html`, '<!doctype html><title>Pitside</title><div id="root"></div>')
+  mkdirSync(`${webDir}/assets`, { recursive: true })
+  writeFileSync(`${webDir}/assets/app-3f9a.js`, 'console.log("pitside");\n'.repeat(50))
   const app = createApp({
     database: reader,
     keys,

@@ -241,6 +241,26 @@ describe('farms and plans', () => {
     expect(versions.body.versions.map((v: { version: number }) => v.version)).toEqual([2, 1])
   })
 
+  it('sends plans and the built assets gzipped to clients that accept it', async () => {
+    const cookie = await signIn('maren@loamridge.example')
+    const id = fx.seed.plans['QBF-v1']!
+    const zipped = await request(fx.app).get(`/api/plans/${id}`).set('Cookie', cookie).set('Accept-Encoding', 'gzip, br')
+    expect(zipped.headers['content-encoding']).toBe('gzip')
+    expect((zipped.body as PlanView).id).toBe(id)
+    const plain = await request(fx.app).get(`/api/plans/${id}`).set('Cookie', cookie).set('Accept-Encoding', 'gzip;q=0, identity')
+    expect(plain.headers['content-encoding']).toBeUndefined()
+    expect(plain.body).toEqual(zipped.body)
+    const asset = await request(fx.app).get('/assets/app-3f9a.js').set('Accept-Encoding', 'gzip')
+    expect(asset.status).toBe(200)
+    expect(asset.headers['content-encoding']).toBe('gzip')
+    expect(asset.headers['cache-control']).toBe('public, max-age=31536000, immutable')
+    expect(asset.text).toBe('console.log("pitside");\n'.repeat(50))
+    expect((await request(fx.app).get('/assets/missing.js')).status).toBe(404)
+    const page = await request(fx.app).get('/farms/QBF')
+    expect(page.status).toBe(200)
+    expect(page.text).toMatch(/<div id="root">/)
+  })
+
   it('answers an unknown API route with a JSON 404 and sets the security headers', async () => {
     const r = await request(fx.app).get('/api/nothing-here')
     expect(r.status).toBe(404)
