@@ -10,6 +10,7 @@ import { note, printJson, printTable } from '../output.ts'
 import { importApplications } from './applications.ts'
 import { importFarms } from './farms.ts'
 import { importFields } from './fields.ts'
+import { importLabFiles } from './labs-import.ts'
 import type { ImportDeps, ImportReport } from './record-import.ts'
 import { importSamples } from './samples.ts'
 import { importStorages } from './storages.ts'
@@ -89,15 +90,6 @@ function stepOf(step: string, detail: string, r: ImportReport): DemoStep {
   return { step, detail, new: sum('new'), changed: sum('changed'), unchanged: sum('unchanged'), status: 'done' }
 }
 
-/** The part of the lab import core the demo uses. */
-interface LabImportModule {
-  importLabFiles(
-    deps: ImportDeps,
-    files: readonly string[],
-    options: { today?: string },
-  ): Promise<{ files: { file: string; outcome: string; reason: string | null }[]; totals: { new: number; unchanged: number; replaced: number; refused: number } }>
-}
-
 /** Loads a module of this build that may not exist yet; null when it does not. */
 async function loadOptional<T>(specifier: string): Promise<T | null> {
   try {
@@ -152,24 +144,19 @@ export async function loadDemo(deps: ImportDeps, options: { demoDir?: string } =
 
   const labDir = join(dir, 'labs')
   const labFiles = readdirSync(labDir).filter((f) => f.endsWith('.csv')).sort().map((f) => join(labDir, f))
-  const labs = await loadOptional<LabImportModule>('./labs-import' + '.js')
-  if (labs) {
-    const summary = await labs.importLabFiles(deps, labFiles, { today })
-    if (summary.totals.refused > 0) {
-      const refused = summary.files.filter((f) => f.outcome === 'refused')
-      throw new AppError('invalid_input', `the demo's lab files were refused: ${refused.map((f) => `${f.file}: ${f.reason ?? ''}`).join('; ')}`)
-    }
-    steps.push({
-      step: 'lab results',
-      detail: `${labFiles.length} lab files`,
-      new: summary.totals.new,
-      changed: summary.totals.replaced,
-      unchanged: summary.totals.unchanged,
-      status: 'done',
-    })
-  } else {
-    steps.push({ step: 'lab results', detail: `${labFiles.length} lab files: \`pitside labs import\` is not part of this build`, new: 0, changed: 0, unchanged: 0, status: 'not available' })
+  const summary = await importLabFiles(deps, labFiles, { today })
+  if (summary.totals.refused > 0) {
+    const refused = summary.files.filter((f) => f.outcome === 'refused')
+    throw new AppError('invalid_input', `the demo's lab files were refused: ${refused.map((f) => `${f.file}: ${f.reason ?? ''}`).join('; ')}`)
   }
+  steps.push({
+    step: 'lab results',
+    detail: `${labFiles.length} lab files (labs import)`,
+    new: summary.totals.new,
+    changed: summary.totals.replaced,
+    unchanged: summary.totals.unchanged,
+    status: 'done',
+  })
 
   const applications = readdirSync(dir).filter((f) => /^applications-.*\.csv$/.test(f)).sort()
   steps.push(stepOf('applications', applications.join(', '), await importApplications(deps, applications.map(file), { today })))

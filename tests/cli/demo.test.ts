@@ -54,8 +54,20 @@ describe('pitside demo', () => {
     expect(by.fields).toMatchObject({ new: 180 }) // 60 fields × seasons 2025–2027
     expect(by.samples).toMatchObject({ new: 168 })
     expect(by.applications).toMatchObject({ new: 89 })
-    expect(['done', 'not available']).toContain(by['lab results']!.status)
-    if (by['lab results']!.status === 'done') expect(by['lab results']).toMatchObject({ new: 168 })
+    expect(by['lab results']).toMatchObject({ status: 'done', new: 168 })
+  })
+
+  it('links every lab result to its sampling event and keeps the below-detection qualifier', () => {
+    const sqlite = new SQLite(db, { readonly: true })
+    try {
+      expect(sqlite.prepare('select count(*) as n, count(sampling_event_id) as linked from lab_results').get()).toEqual({ n: 168, linked: 168 })
+      const below = sqlite.prepare("select sample_code, qualifiers from lab_results where qualifiers like '%<%'").all() as { sample_code: string; qualifiers: string }[]
+      expect(below).toHaveLength(1)
+      expect(below[0]!.sample_code).toMatch(/^WBD-LAGOON-2024/)
+      expect(sqlite.prepare("select count(*) as n from import_runs where kind = 'labs'").get()).toEqual({ n: 36 })
+    } finally {
+      sqlite.close()
+    }
   })
 
   it('gives every farm one client who sees only that farm, and two advisors', () => {
