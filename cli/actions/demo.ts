@@ -5,6 +5,7 @@ import { migrateToLatest } from '../../shared/db/migrations.ts'
 import { openWriter } from '../../shared/db/open-database.ts'
 import { findOrganizationByCode, findUserByEmail, resolveOrganization, type Role } from '../../shared/db/users.ts'
 import { AppError } from '../../shared/errors.ts'
+import { parseFarmCsv } from '../../shared/farm-csv.ts'
 import type { ActionModule } from '../lazy.ts'
 import { note, printJson, printTable } from '../output.ts'
 import { importApplications } from './applications.ts'
@@ -72,16 +73,11 @@ export function findDemoDir(): string {
   throw new AppError('not_found', 'cannot find the examples/demo folder of the Pitside package')
 }
 
-/** The demo accounts: the two advisors and one client per farm of the farms file (its contact e-mail). */
+/** The demo accounts: the two advisors, and one client per farm of the farms file (its contact e-mail and operator). */
 export function demoAccounts(farmsCsv: string): DemoAccount[] {
-  const [header, ...lines] = farmsCsv.trim().split(/\r?\n/)
-  const cols = header!.split(',')
-  const at = (name: string) => cols.indexOf(name)
-  const clients = lines.map((line) => {
-    // the demo's farms file has no quoted commas before these columns
-    const cells = line.split(',')
-    return { email: cells[at('contact_email')]!, name: cells[at('operator_name')]!, role: 'client' as const, farmCodes: [cells[at('farm')]!] }
-  })
+  const clients = parseFarmCsv(farmsCsv)
+    .rows.filter((f) => f.contactEmail)
+    .map((f) => ({ email: f.contactEmail!, name: f.operatorName ?? f.name, role: 'client' as const, farmCodes: [f.code] }))
   return [...demoScenario.advisors.map((a) => ({ ...a, role: 'advisor' as const, farmCodes: [] })), ...clients]
 }
 
