@@ -14,7 +14,8 @@ const type = 'pitside-session+jwt'
 
 export interface SignedIn {
   viewer: Viewer
-  user: SessionUser
+  /** The account as GET /api/session shows it (an advisor's farm list is read only when asked for). */
+  user: () => SessionUser
   tokenId: string
   expiresAt: Date
 }
@@ -139,7 +140,6 @@ export class Sessions {
     const row = this.userById.get(claims.sub)
     if (!row || row.disabled !== 0 || passwordStamp(row.password_hash) !== claims.st) return null
     const grants = row.role === 'client' ? this.grants.all(row.id, row.organization_id) : []
-    const farms = row.role === 'advisor' ? this.allFarmCodes.all(row.organization_id).map((f) => f.code) : grants.map((g) => g.code)
     return {
       tokenId: claims.jti,
       expiresAt: new Date(claims.exp * 1000),
@@ -149,13 +149,13 @@ export class Sessions {
         role: row.role,
         farmIds: new Set(grants.map((g) => g.farm_id)),
       },
-      user: {
+      user: () => ({
         email: row.email,
         name: row.name,
         role: row.role,
         organization: { code: row.org_code, name: row.org_name },
-        farms,
-      },
+        farms: row.role === 'advisor' ? this.allFarmCodes.all(row.organization_id).map((f) => f.code) : grants.map((g) => g.code),
+      }),
     }
   }
 

@@ -80,13 +80,13 @@ export function sessionRoutes({ db, sessions, limits }: { db: Kysely<Database>; 
     // read back through the same path as every later request
     const signedIn = await sessions.readToken(token)
     if (!signedIn) throw new AppError('unauthorized', badCredentials)
-    const body: SessionResponse = { user: signedIn.user, expires_at: expiresAt.toISOString() }
+    const body: SessionResponse = { user: signedIn.user(), expires_at: expiresAt.toISOString() }
     res.json(body)
   })
 
   router.get('/', async (req, res) => {
     const signedIn = await sessions.require(req)
-    const body: SessionResponse = { user: signedIn.user, expires_at: signedIn.expiresAt.toISOString() }
+    const body: SessionResponse = { user: signedIn.user(), expires_at: signedIn.expiresAt.toISOString() }
     res.set('Cache-Control', 'no-store').json(body)
   })
 

@@ -87,15 +87,19 @@ export async function findVisibleFarms(db: Kysely<Database>, viewer: Viewer): Pr
       .execute(),
     planSummaries(db, ids),
   ])
+  const storageCount = new Map(storages.map((r) => [r.farm_id, Number(r.n)]))
+  const fieldRows = new Map(fields.map((r) => [r.farm_id, r]))
+  const latestPlan = new Map<number, PlanSummary & { farm_id: number }>()
+  for (const p of plans) if (!latestPlan.has(p.farm_id)) latestPlan.set(p.farm_id, p) // newest first
   return farms.map((f) => {
-    const fieldRow = fields.find((r) => r.farm_id === f.id)
-    const latest = plans.find((p) => p.farm_id === f.id)
+    const fieldRow = fieldRows.get(f.id)
+    const latest = latestPlan.get(f.id)
     return {
       code: f.code,
       name: f.name,
       operator_name: f.operator_name,
       region: f.region,
-      storages: Number(storages.find((r) => r.farm_id === f.id)?.n ?? 0),
+      storages: storageCount.get(f.id) ?? 0,
       fields: Number(fieldRow?.n ?? 0),
       acres: Number(fieldRow?.acres ?? 0),
       latest_plan: latest ? withoutFarmId(latest) : null,
