@@ -1,5 +1,4 @@
 import { randomUUID } from 'node:crypto'
-import { userInfo } from 'node:os'
 import type { Kysely } from 'kysely'
 import { z } from 'zod'
 import { openWriter } from '../../shared/db/open-database.ts'
@@ -64,7 +63,8 @@ const emailPattern = /^[^\s@,;:<>()[\]"\\\x00-\x1f\x7f]+@[^\s@,;:<>()[\]"\\\x00-
 /** Creates a share link to one plan and e-mails it. The link row is removed again if the mail cannot be sent. */
 export async function createShare(
   deps: ShareDeps,
-  input: { planId: number; to: string; expiresInMs: number; createdBy: string },
+  /** `createdBy` names who shares (stored and shown in the e-mail); default: the farm's organization. */
+  input: { planId: number; to: string; expiresInMs: number; createdBy?: string },
 ): Promise<CreatedShare> {
   const now = deps.now?.() ?? new Date()
   const to = normalizeEmail(input.to)
@@ -72,18 +72,20 @@ export async function createShare(
   const plan = await deps.db
     .selectFrom('plans')
     .innerJoin('farms', 'farms.id', 'plans.farm_id')
-    .select(['plans.id', 'plans.season', 'plans.version', 'farms.code', 'farms.name'])
+    .innerJoin('organizations', 'organizations.id', 'farms.organization_id')
+    .select(['plans.id', 'plans.season', 'plans.version', 'farms.code', 'farms.name', 'organizations.name as organization_name'])
     .where('plans.id', '=', input.planId)
     .executeTakeFirst()
   if (!plan) throw new AppError('not_found', `no plan ${input.planId} (see \`pitside plans list\`)`)
 
+  const createdBy = input.createdBy?.trim() || plan.organization_name
   const id = randomUUID()
   const expiresAt = new Date(Math.floor((now.getTime() + input.expiresInMs) / 1000) * 1000)
   const token = await signShareToken(deps.keys.share, { id, planId: plan.id, expiresAt }, now)
   const url = shareUrl(deps.publicUrl, token)
-  const link = await insertShareLink(deps.db, { id, planId: plan.id, recipientEmail: to, createdBy: input.createdBy, expiresAt })
+  const link = await insertShareLink(deps.db, { id, planId: plan.id, recipientEmail: to, createdBy, expiresAt })
   try {
-    const sent = await sendMail(deps.mail, { id, to, ...composeShareMail({ url, expiresAt, farmName: plan.name, season: plan.season, version: plan.version, from: input.createdBy }) }, now)
+    const sent = await sendMail(deps.mail, { id, to, ...composeShareMail({ url, expiresAt, farmName: plan.name, season: plan.season, version: plan.version, from: createdBy }) }, now)
     return { link, url, outboxFile: sent.outboxFile }
   } catch (error) {
     await deps.db.deleteFrom('share_links').where('id', '=', id).execute()
@@ -167,7 +169,7 @@ export const runCreate: ActionModule['run'] = async ({ args, options, globals: g
       planId,
       to: options.to,
       expiresInMs,
-      createdBy: options.by ?? process.env.PITSIDE_USER ?? userInfo().username,
+      createdBy: options.by ?? process.env.PITSIDE_USER,
     })
     if (g.json) {
       printJson({ id: created.link.id, url: created.url, expires_at: created.link.expiresAt, outbox_file: created.outboxFile })

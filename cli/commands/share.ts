@@ -10,7 +10,7 @@ export function register(program: Command): void {
     .argument('[plan-id]', 'the plan to share (see `pitside plans list`)')
     .option('--to <email>', 'who receives the link')
     .option('--expires <duration>', 'how long the link works: 90m, 12h, 30d, 8w (at most 365d)', '30d')
-    .option('--by <name>', 'who is sharing (stored with the link; default: your login name)')
+    .option('--by <name>', 'who is sharing, as the e-mail names them (default: PITSIDE_USER, else the farm\'s advisory firm)')
     .action(lazyAction(async () => ({ run: (await load()).runCreate })))
 
   share

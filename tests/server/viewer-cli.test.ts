@@ -2,7 +2,7 @@ import { statSync } from 'node:fs'
 import { afterEach, describe, expect, it } from 'vitest'
 import { runCli } from '../helpers/cli.ts'
 import { makeTempDatabase, makeTempDir, type TempDir } from '../helpers/temp-db.ts'
-import { findShareUrl } from '../helpers/viewer-eml.ts'
+import { findShareUrl, readEmlText } from '../helpers/viewer-eml.ts'
 import { seedViewerDatabase, type SeedResult } from '../helpers/viewer-seed.ts'
 import { spawnServe } from '../helpers/viewer-server.ts'
 
@@ -85,6 +85,7 @@ describe('pitside share', () => {
     expect(Object.keys(created).sort()).toEqual(['expires_at', 'id', 'outbox_file', 'url'])
     expect(created.url).toMatch(/^https:\/\/viewer\.example\/s\/[\w-]+\.[\w-]+\.[\w-]+$/)
     expect(findShareUrl(created.outbox_file)).toBe(created.url)
+    expect(readEmlText(created.outbox_file)).toMatch(/Loamridge Nutrient Advisors has shared the 2027 manure application plan \(version 2\) for Quillback Finishing/)
     const hours = (Date.parse(created.expires_at) - Date.now()) / 3600_000
     expect(hours).toBeGreaterThan(11.9)
     expect(hours).toBeLessThanOrEqual(12)
