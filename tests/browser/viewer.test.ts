@@ -41,9 +41,10 @@ async function freshPage(): Promise<Page> {
   return page
 }
 
-async function signIn(page: Page, email: string) {
+async function signIn(page: Page, email: string, screenshot?: string) {
   await page.goto(`${server.url}/`)
   await page.waitForURL(/\/sign-in/)
+  if (screenshot) await shot(page, screenshot)
   await page.getByLabel('E-mail address').fill(email)
   await page.getByLabel('Password').fill(demo.password)
   await page.getByRole('button', { name: 'Sign in' }).click()
@@ -52,7 +53,7 @@ async function signIn(page: Page, email: string) {
 describe('the viewer in a browser', () => {
   it('lets an advisor sign in, browse the farms and open a plan', async () => {
     const page = await freshPage()
-    await signIn(page, demo.advisor)
+    await signIn(page, demo.advisor, 'sign-in.png')
     await page.getByRole('heading', { name: 'Farms', level: 1 }).waitFor()
     const rows = page.locator('table tbody tr')
     expect(await rows.count()).toBe(demo.advisorFarms.length)
