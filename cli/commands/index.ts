@@ -3,6 +3,7 @@ import { register as registerBackup } from './backup.ts'
 import { register as registerCheck } from './check.ts'
 import { register as registerInit } from './init.ts'
 import { register as registerLabs } from './labs.ts'
+import { register as registerPlan } from './plan.ts'
 import { register as registerRestore } from './restore.ts'
 import { register as registerUsers } from './users.ts'
 import { register as registerFarms } from './farms.ts'
@@ -20,6 +21,7 @@ import { register as registerCalc } from './calc.ts'
 export function registerCommands(program: Command): void {
   registerInit(program)
   registerLabs(program)
+  registerPlan(program)
   registerBackup(program)
   registerRestore(program)
   registerCheck(program)
