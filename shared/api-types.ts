@@ -191,6 +191,8 @@ export interface PlanView {
   result: PlanResult
   storages: PlanStorageInfo[]
   fields: { code: string; name: string | null }[]
+  /** The calculator case each field was computed from (`plans.inputs`), by field code, for the what-if panel. */
+  cases: Record<string, unknown>
 }
 
 export interface PlanVersionsResponse {

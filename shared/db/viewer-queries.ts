@@ -265,6 +265,20 @@ function parseResult(text: string): PlanResult {
   }
 }
 
+/** The calculator case of each planned field from the stored inputs (`inputs.fields[].case`), by field code. */
+function casesOf(inputs: string): Record<string, unknown> {
+  const out: Record<string, unknown> = {}
+  try {
+    const value = JSON.parse(inputs) as { fields?: { code?: unknown; case?: unknown }[] }
+    for (const f of Array.isArray(value?.fields) ? value.fields : []) {
+      if (typeof f?.code === 'string' && f.case && typeof f.case === 'object') out[f.code] = f.case
+    }
+  } catch {
+    // inputs that are not JSON simply give the panel nothing to start from
+  }
+  return out
+}
+
 /** A plan as the viewer shows it (never checks access: callers do, with findPlanOwner and canSeeFarm). */
 export async function findPlanView(db: Kysely<Database>, planId: number): Promise<(PlanView & { owner: PlanOwner }) | undefined> {
   const row = await db
@@ -299,6 +313,7 @@ export async function findPlanView(db: Kysely<Database>, planId: number): Promis
     result: parseResult(row.result),
     storages,
     fields,
+    cases: casesOf(row.inputs),
   }
 }
 

@@ -102,10 +102,12 @@ export const seedFarms: FarmSeed[] = [
   },
 ]
 
-/** A stored-plan field result: the engine's own output for the field, plus the field's labels. */
-export function seedFieldResult(field: FieldSeed, storage: StorageSeed, analysis: { total_n: number; ammonium_n: number; p2o5: number; k2o: number; dry_matter_pct: number }) {
+type SeedAnalysis = { total_n: number; ammonium_n: number; p2o5: number; k2o: number; dry_matter_pct: number }
+
+/** The calculator case of one seeded field, as a plan stores it in `inputs.fields[].case`. */
+export function seedFieldCase(field: FieldSeed, storage: StorageSeed, analysis: SeedAnalysis): RateCase {
   const liquid = storage.form === 'liquid'
-  const r = computeRate({
+  return {
     manure: {
       form: storage.form,
       species: storage.species as RateCase['manure']['species'],
@@ -123,7 +125,12 @@ export function seedFieldResult(field: FieldSeed, storage: StorageSeed, analysis
     units: 'us',
     acres: field.acres,
     applicator_capacity: liquid ? 6000 : 15,
-  })
+  }
+}
+
+/** A stored-plan field result: the engine's own output for the field, plus the field's labels. */
+export function seedFieldResult(field: FieldSeed, storage: StorageSeed, analysis: SeedAnalysis) {
+  const r = computeRate(seedFieldCase(field, storage, analysis))
   return {
     field: field.code,
     acres: field.acres,
@@ -263,10 +270,13 @@ export async function seedViewerDatabase(db: Kysely<Database>): Promise<SeedResu
         const analysis = { per: s.form === 'liquid' ? '1000gal' : 'ton', dry_matter_pct: round(l.dm / l.n, 2), total_n: round(l.total_n / l.n, 2), ammonium_n: round(l.ammonium_n / l.n, 2), organic_n: round((l.total_n - l.ammonium_n) / l.n, 2), p2o5: round(l.p2o5 / l.n, 2), k2o: round(l.k2o / l.n, 2) }
         return { seed: s, analysis }
       })
+      const cases: { code: string; case: RateCase }[] = []
       const fields = farm.fields.map((f) => {
         const st = storages.find((s) => s.seed.code === f.storage)!
         // version 2 plans with a slightly lower N need, so versions differ
-        return seedFieldResult({ ...f, need: version === 1 ? f.need : [f.need[0] - 10, f.need[1], f.need[2]] }, st.seed, st.analysis)
+        const planned = { ...f, need: version === 1 ? f.need : ([f.need[0] - 10, f.need[1], f.need[2]] as [number, number, number]) }
+        cases.push({ code: f.code, case: seedFieldCase(planned, st.seed, st.analysis) })
+        return seedFieldResult(planned, st.seed, st.analysis)
       })
       const result = {
         farm: farm.code,
@@ -295,7 +305,7 @@ export async function seedViewerDatabase(db: Kysely<Database>): Promise<SeedResu
           reference_set_version: fields[0]!.reference_set.version,
           basis: 'lowest',
           as_of: '2026-11-15',
-          inputs: '{}',
+          inputs: JSON.stringify({ farm: farm.code, season: 2027, as_of: '2026-11-15', fields: cases }),
           result: JSON.stringify(result),
           created_by: 'maren@loamridge.example',
           created_at: result.created_at,

@@ -235,6 +235,10 @@ describe('farms and plans', () => {
     expect(plan.result).toEqual(stored)
     expect(plan).toMatchObject({ id, version: 2, season: 2027, farm: { code: 'QBF', name: 'Quillback Finishing' }, created_by: 'maren@loamridge.example' })
     expect(plan.storages.map((s) => s.species)).toEqual(['swine', 'swine'])
+    // the case each field was computed from, for the what-if panel
+    const inputs = JSON.parse((await fx.writer.db.selectFrom('plans').select('inputs').where('id', '=', id).executeTakeFirstOrThrow()).inputs)
+    expect(Object.keys(plan.cases).sort()).toEqual(['CREEK', 'HILL', 'N40'])
+    expect(plan.cases.N40).toEqual(inputs.fields.find((f: { code: string }) => f.code === 'N40').case)
     const again = await request(fx.app).get(`/api/plans/${id}`).set('Cookie', cookie).set('If-None-Match', String(r.headers.etag))
     expect(again.status).toBe(304)
     const versions = await request(fx.app).get(`/api/plans/${id}/versions`).set('Cookie', cookie)
