@@ -64,6 +64,11 @@ const checkedColumns = ['total_n', 'ammonium_n', 'p2o5', 'k2o', 'dry_matter_pct'
 type CheckedColumn = (typeof checkedColumns)[number]
 const bookKey = { total_n: 'totalN', ammonium_n: 'ammoniumN', p2o5: 'p2o5', k2o: 'k2o', dry_matter_pct: 'dryMatterPct' } as const
 
+/** Drops binary rounding noise (57.3 − 39.2 = 18.099999999999994) at 9 decimals, far below any lab's precision. */
+function tidy(x: number | null): number | null {
+  return x === null ? null : Math.round(x * 1e9) / 1e9
+}
+
 function fmt(x: number): string {
   return String(Math.round(x * 100) / 100)
 }
@@ -160,13 +165,13 @@ export function checkLabRow(row: LabRow, context: LabCheckContext, problems: Pro
   out.form = form
   out.species = row.species ?? storage.species
   out.perUnit = a.per
-  out.dryMatterPct = a.dryMatterPct
-  out.totalN = a.totalN
-  out.ammoniumN = a.ammoniumN
-  out.organicN = a.organicN
-  out.p2o5 = a.p2o5
-  out.k2o = a.k2o
-  out.sulfur = a.sulfur
+  out.dryMatterPct = tidy(a.dryMatterPct)
+  out.totalN = tidy(a.totalN)!
+  out.ammoniumN = tidy(a.ammoniumN)
+  out.organicN = tidy(a.organicN)
+  out.p2o5 = tidy(a.p2o5)
+  out.k2o = tidy(a.k2o)
+  out.sulfur = tidy(a.sulfur)
   out.warnings = warnings
   return true
 }

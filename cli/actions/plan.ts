@@ -118,7 +118,7 @@ export function formatPlan(p: PlanJson): string {
 /** The plans as CSV, one row per field (RFC 4180, safe to open in a spreadsheet). */
 export function plansCsv(plans: readonly PlanJson[]): string {
   const header = [
-    'plan_id', 'farm', 'season', 'version', 'reference_set', 'basis', 'as_of', 'field', 'acres', 'crop', 'storage', 'method',
+    'plan_id', 'farm', 'season', 'version', 'reference_set', 'basis', 'as_of', 'field', 'field_name', 'acres', 'crop', 'storage', 'method',
     'rate', 'rate_unit', 'limited_by', 'need_n', 'need_p2o5', 'need_k2o', 'applied_n', 'applied_p2o5', 'applied_k2o',
     'supplied_n', 'supplied_p2o5', 'supplied_k2o', 'supplemental_n', 'supplemental_p2o5', 'supplemental_k2o',
     'total_manure', 'total_manure_unit', 'loads', 'residual_n_credit', 'warnings',
@@ -127,7 +127,7 @@ export function plansCsv(plans: readonly PlanJson[]): string {
   for (const p of plans) {
     for (const f of p.fields) {
       rows.push([
-        'id' in p ? (p as { id: number }).id : null, p.farm, p.season, p.version, p.reference_set, f.basis, p.as_of, f.field, f.acres, f.crop, f.storage, f.method,
+        'id' in p ? (p as { id: number }).id : null, p.farm, p.season, p.version, p.reference_set, f.basis, p.as_of, f.field, f.name, f.acres, f.crop, f.storage, f.method,
         f.rate, f.rate_unit, f.limited_by, f.need.n, f.need.p2o5, f.need.k2o, f.applied.n, f.applied.p2o5, f.applied.k2o,
         f.supplied.n, f.supplied.p2o5, f.supplied.k2o, f.supplemental.n, f.supplemental.p2o5, f.supplemental.k2o,
         f.total_manure, f.total_manure_unit, f.loads?.field ?? null, f.credits.manure_n, f.warnings.map((w) => w.message).join('; '),

@@ -4,6 +4,9 @@ import { register as registerCheck } from './check.ts'
 import { register as registerInit } from './init.ts'
 import { register as registerLabs } from './labs.ts'
 import { register as registerPlan } from './plan.ts'
+import { register as registerPlans } from './plans.ts'
+import { register as registerExport } from './export.ts'
+import { register as registerRecords } from './records.ts'
 import { register as registerRestore } from './restore.ts'
 import { register as registerUsers } from './users.ts'
 import { register as registerFarms } from './farms.ts'
@@ -22,6 +25,9 @@ export function registerCommands(program: Command): void {
   registerInit(program)
   registerLabs(program)
   registerPlan(program)
+  registerPlans(program)
+  registerExport(program)
+  registerRecords(program)
   registerBackup(program)
   registerRestore(program)
   registerCheck(program)

@@ -27,6 +27,7 @@ export interface SeedStorage {
 
 export interface SeedField {
   code: string
+  name?: string
   acres: number
   storage?: string
   method?: string
@@ -34,7 +35,16 @@ export interface SeedField {
   overrides?: Record<string, unknown>
   seasons?: { season: number; crop: string; yieldGoal?: number; previousCrop?: string }[]
   soil?: { pPpm?: number; pMethod?: string; kPpm?: number; sampledOn?: string }
-  applications?: { storage?: string; appliedOn: string; amount: number; amountUnit: 'gal' | 'ton'; method?: string; incorporatedWithinHours?: number }[]
+  applications?: {
+    storage?: string
+    appliedOn: string
+    amount: number
+    amountUnit: 'gal' | 'ton'
+    method?: string
+    incorporatedWithinHours?: number
+    applicator?: string
+    notes?: string
+  }[]
 }
 
 export interface SeedFarm {
@@ -87,6 +97,7 @@ export async function seedFarms(db: Kysely<Database>, farms: readonly SeedFarm[]
         .values({
           farm_id: farm.id,
           code: fl.code,
+          name: fl.name ?? null,
           acres: fl.acres,
           storage_id: fl.storage ? storageIds.get(fl.storage)! : null,
           method: fl.method ?? null,
@@ -118,6 +129,8 @@ export async function seedFarms(db: Kysely<Database>, farms: readonly SeedFarm[]
             amount_unit: a.amountUnit,
             method: a.method ?? null,
             incorporated_within_hours: a.incorporatedWithinHours ?? null,
+            applicator: a.applicator ?? null,
+            notes: a.notes ?? null,
           })
           .execute()
       }
