@@ -212,6 +212,16 @@ function Factors({ fields }: { fields: PlanField[] }) {
               ))}
             </dl>
           )}
+          {(num((f.credits as { manure_n?: unknown } | undefined)?.manure_n) ?? 0) > 0 && (
+            <p className="mt-2 text-sm">
+              Residual N from earlier applications credited: <span className="num">{fmt((f.credits as { manure_n: number }).manure_n, 1)}</span> lb/ac
+            </p>
+          )}
+          {f.p_budget !== null && typeof f.p_budget === 'object' && (
+            <p className="mt-2 text-sm">
+              Phosphorus budget: this application covers <span className="num">{fmt((f.p_budget as { seasons_covered?: unknown }).seasons_covered)}</span> season(s) of crop removal.
+            </p>
+          )}
           {f.sources && f.sources.length > 0 && (
             <>
               <h4 className="mt-3 text-sm font-semibold">Sources</h4>
@@ -238,7 +248,9 @@ function StorageBudget({ g }: { g: StorageGroup }) {
       <h3 className="font-semibold">{storageTitle(g)}</h3>
       <p className="text-sm text-muted">
         {[label(g.kind), g.species, g.form].filter((x) => x && x !== '—').join(' · ')}
-        {num(g.stored?.samples) !== null && ` · ${g.stored!.samples} samples in the latest round`}
+        {g.stored?.analysis_source === 'book'
+          ? ' · no lab result yet: book values stand in'
+          : num(g.stored?.samples) !== null && ` · ${g.stored!.samples} samples in the latest round`}
       </p>
       <div className="mt-3 space-y-3">
         <BudgetBar used={planned} available={num(g.stored?.in_storage)} usedLabel="planned" availableLabel="in storage" unit={g.amountUnit} overMessage="More is planned than there is in storage." />
@@ -275,6 +287,66 @@ function StorageBudget({ g }: { g: StorageGroup }) {
         </table>
       )}
     </article>
+  )
+}
+
+function Totals({ plan }: { plan: PlanView }) {
+  const t = plan.result.totals as Record<string, unknown> | undefined
+  if (!t || typeof t !== 'object') return null
+  const planned = (t.planned ?? {}) as Record<string, unknown>
+  const sup = (t.supplemental_lb ?? {}) as Record<string, unknown>
+  const items: [string, string][] = [
+    ['Fields planned', `${fmt(t.fields)}${num(t.skipped) ? ` (${fmt(t.skipped)} not planned)` : ''}`],
+    ['Area', `${fmt(t.acres, 1)} ac`],
+  ]
+  if (num(planned.gal)) items.push(['Liquid manure', `${fmt(planned.gal)} gal`])
+  if (num(planned.ton)) items.push(['Solid manure', `${fmt(planned.ton)} ton`])
+  if (Object.keys(sup).length) items.push(['Fertilizer still needed, whole farm', `${nutrients.map((k) => fmt(sup[k])).join('–')} lb N–P₂O₅–K₂O`])
+  return (
+    <dl className="grid grid-cols-2 gap-x-6 gap-y-2 rounded-md border border-line bg-surface p-4 text-sm sm:grid-cols-4">
+      {items.map(([k, v]) => (
+        <div key={k}>
+          <dt className="text-muted">{k}</dt>
+          <dd className="num text-left text-base font-semibold">{v}</dd>
+        </div>
+      ))}
+    </dl>
+  )
+}
+
+/** Plan-level and storage warnings, and the fields the plan could not plan, with the reason. */
+function Notes({ plan }: { plan: PlanView }) {
+  const skipped = Array.isArray(plan.result.skipped) ? (plan.result.skipped as { field?: unknown; reason?: unknown }[]) : []
+  const planWarnings = (Array.isArray(plan.result.warnings) ? plan.result.warnings : [])
+    .filter((w) => !(w && typeof w === 'object' && (w as { code?: unknown }).code === 'fields_skipped' && skipped.length))
+    .map(warningText)
+  const storageWarnings = (plan.result.storages ?? []).flatMap((st) => (Array.isArray(st.warnings) ? st.warnings.map(warningText) : []))
+  if (!skipped.length && !planWarnings.length && !storageWarnings.length) return null
+  return (
+    <section aria-labelledby="notes-title" className="no-print">
+      <h2 id="notes-title" className="mb-3 text-xl font-semibold">Notes on this plan</h2>
+      <div className="space-y-3 rounded-md border border-line bg-surface p-4 text-sm">
+        {[...planWarnings, ...storageWarnings].length > 0 && (
+          <ul className="list-disc space-y-1 pl-5">
+            {[...planWarnings, ...storageWarnings].map((w) => (
+              <li key={w}>{w}</li>
+            ))}
+          </ul>
+        )}
+        {skipped.length > 0 && (
+          <>
+            <h3 className="font-semibold">Not planned ({skipped.length} fields)</h3>
+            <ul className="list-disc space-y-1 pl-5">
+              {skipped.map((f) => (
+                <li key={String(f.field)}>
+                  <span className="font-semibold">{String(f.field)}</span>: {String(f.reason ?? 'no reason given')}
+                </li>
+              ))}
+            </ul>
+          </>
+        )}
+      </div>
+    </section>
   )
 }
 
@@ -332,6 +404,7 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
   const groups = groupByStorage(plan)
   const fields = plan.result.fields ?? []
   const fieldNames = new Map(plan.fields.map((f) => [f.code, f.name]))
+  for (const f of fields) if (typeof f.name === 'string' && f.name) fieldNames.set(f.field, f.name)
   return (
     <div className="space-y-8">
       <PrintSheet plan={plan} groups={groups} />
@@ -341,6 +414,10 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
         <div><dt className="text-muted">Analyses as of</dt><dd>{date(plan.as_of)}</dd></div>
         <div><dt className="text-muted">Method</dt><dd>{plan.reference_set} {plan.reference_set_version && `v${plan.reference_set_version}`} · basis {label(plan.basis)}</dd></div>
       </dl>
+
+      <div className="no-print">
+        <Totals plan={plan} />
+      </div>
 
       <div className="no-print">
         <Cautions id="cautions-top" />
@@ -377,6 +454,8 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
           </div>
         </section>
       )}
+
+      <Notes plan={plan} />
 
       {whatIf}
 

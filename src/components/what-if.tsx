@@ -73,7 +73,7 @@ export default function WhatIf({ plan }: { plan: PlanView }) {
             id={`${ids}-rate`}
             inputMode="decimal"
             value={rateText}
-            placeholder={`planned ${fmt(field.rate, rd)}; empty: let the engine choose`}
+            placeholder={`planned ${fmt(field.rate, rd)}`}
             onChange={(e) => setRateText(e.target.value)}
             aria-invalid={rateError ? true : undefined}
             aria-describedby={`${ids}-rate-help`}
