@@ -86,3 +86,49 @@ describe('computeAvailability, ammonium retention + organic release (Alberta NMP
     expect(r.factors.overridden).toEqual(['ammonium_retention', 'p2o5_availability', 'k2o_availability'])
   })
 })
+
+describe('computeAvailability, sprinkler-irrigated liquid manure (Univ. of Nebraska–Lincoln 2022)', () => {
+  const rows = [
+    // UNL CropWatch 2022: ammonium-N availability from sprinkler irrigation 80 % above 0.4 in, 40 % at or below
+    { depth: 0.75, retention: 0.8, source: 'UNL 2022: more than 0.4 in per pass, 80 %' },
+    { depth: 0.41, retention: 0.8, source: 'UNL 2022: more than 0.4 in per pass, 80 %' },
+    { depth: 0.4, retention: 0.4, source: 'UNL 2022: 0.4 in or less, 40 %' },
+    { depth: 0.2, retention: 0.4, source: 'UNL 2022: 0.4 in or less, 40 %' },
+  ]
+  it.each(rows)('keeps $retention of ammonium-N at $depth in per pass ($source)', ({ depth, retention }) => {
+    const r = computeAvailability(analysis, { species: 'swine', form: 'liquid' }, { method: 'irrigated', irrigationDepthIn: depth }, alberta)
+    expect(r.factors.ammoniumRetention).toBe(retention)
+    // available = NH4 × retention + organic × 0.25 (Alberta NMP Guide p. 214)
+    expect(r.available.n).toBeCloseTo(60 * retention + 40 * 0.25, 10)
+    expect(r.factors.sourceIds).toContain('unl-irrigation-2022')
+    expect(r.warnings).toEqual([])
+  })
+
+  it('assumes the shallow class (40 %) when the depth is not given, and says so', () => {
+    const r = computeAvailability(analysis, { species: 'dairy', form: 'liquid' }, { method: 'irrigated' }, alberta)
+    expect(r.factors.ammoniumRetention).toBe(0.4)
+    expect(r.warnings.map((w) => w.code)).toEqual(['irrigation_depth_assumed'])
+    expect(r.warnings[0]!.message).toContain('0.4 in or less')
+  })
+
+  it('uses the average factor and warns when a weather class is asked for (the Nebraska factors have none)', () => {
+    const r = computeAvailability(analysis, { species: 'dairy', form: 'liquid' }, { method: 'irrigated', irrigationDepthIn: 1, conditions: 'warm_dry' }, alberta)
+    expect(r.factors.ammoniumRetention).toBe(0.8)
+    expect(r.warnings.map((w) => w.code)).toEqual(['conditions_unused'])
+  })
+
+  it('says so when a depth is given to a set with one irrigated factor whatever the depth', () => {
+    const own = JSON.parse(JSON.stringify(alberta)) as typeof alberta
+    if (own.nitrogen.model !== 'retention_release') throw new Error('expected the retention model')
+    own.nitrogen.ammonium_retention = own.nitrogen.ammonium_retention.filter((r) => r.up_to_depth_in === undefined)
+    const r = computeAvailability(analysis, { species: 'dairy', form: 'liquid' }, { method: 'irrigated', irrigationDepthIn: 0.3 }, own)
+    expect(r.factors.ammoniumRetention).toBe(0.8)
+    expect(r.warnings.map((w) => w.code)).toEqual(['irrigation_depth_unused'])
+  })
+
+  it('falls back to broadcast without incorporation in a set without irrigated factors (UMN Table 1 has none)', () => {
+    const r = computeAvailability(analysis, { species: 'swine', form: 'liquid' }, { method: 'irrigated', irrigationDepthIn: 0.5 }, umn)
+    expect(r.factors.nFirstYearFraction).toBe(0.35) // UMN Table 1, swine, incorporated after more than 96 h
+    expect(r.warnings.map((w) => w.code)).toContain('irrigation_as_broadcast')
+  })
+})

@@ -10,6 +10,8 @@ import type {
 export interface ApplicationInput {
   method: ApplicationMethod
   incorporatedWithinHours?: number
+  /** Inches of liquid manure one irrigation pass puts on (irrigated only). */
+  irrigationDepthIn?: number
   conditions?: Conditions
   ammoniumRetention?: number
   organicNRelease?: number
@@ -47,23 +49,47 @@ function matches(rowValue: string, value: string) {
 }
 
 /**
- * Picks the rows for an incorporation delay: the first (smallest) `within_hours` bracket that
- * contains the delay; beyond the largest bracket the manure counts as not incorporated.
+ * Picks the rows for one application. broadcast_incorporated: the first (smallest) `within_hours`
+ * bracket that contains the delay; beyond the largest bracket the manure counts as not
+ * incorporated. irrigated: the first `up_to_depth_in` bracket that contains the depth of one pass
+ * (a row without a bracket takes deeper passes); a set without irrigated rows falls back to
+ * broadcast without incorporation. Every assumption is a warning.
  */
-function pickByHours<T extends { method: string; within_hours?: number }>(
+function pickRows<T extends { method: string; within_hours?: number; up_to_depth_in?: number }>(
   rows: T[],
-  method: ApplicationMethod,
-  hours: number | undefined,
+  application: Pick<ApplicationInput, 'method' | 'incorporatedWithinHours' | 'irrigationDepthIn'>,
   warnings: AvailabilityResult['warnings'],
 ): { rows: T[]; method: ApplicationMethod } {
-  if (method === 'irrigated' && !rows.some((r) => r.method === 'irrigated')) {
-    warnings.push({
-      code: 'irrigation_as_broadcast',
-      message: 'this reference set has no factor for irrigated manure; used broadcast without incorporation (give application.ammonium_retention or n_availability to override)',
-    })
-    return { rows: rows.filter((r) => r.method === 'broadcast'), method: 'broadcast' }
+  const method = application.method
+  if (method === 'irrigated') {
+    const irrigated = rows.filter((r) => r.method === 'irrigated')
+    if (irrigated.length === 0) {
+      warnings.push({
+        code: 'irrigation_as_broadcast',
+        message: 'this reference set has no factor for irrigated manure; used broadcast without incorporation (give application.ammonium_retention or n_availability to override)',
+      })
+      return { rows: rows.filter((r) => r.method === 'broadcast'), method: 'broadcast' }
+    }
+    const brackets = [...new Set(irrigated.map((r) => r.up_to_depth_in ?? Infinity))].sort((a, b) => a - b)
+    const depth = application.irrigationDepthIn
+    if (brackets.length === 1 && brackets[0] === Infinity) {
+      if (depth !== undefined) {
+        warnings.push({ code: 'irrigation_depth_unused', message: 'this reference set has one factor for irrigated manure whatever the depth; application.irrigation_depth_in was not used' })
+      }
+      return { rows: irrigated, method }
+    }
+    let limit: number
+    if (depth === undefined) {
+      limit = brackets[0]!
+      warnings.push({
+        code: 'irrigation_depth_assumed',
+        message: `irrigation_depth_in not given; assumed ${limit} in or less per pass, the depth this set credits least ammonium-N for (give application.irrigation_depth_in)`,
+      })
+    } else limit = brackets.find((b) => depth <= b) ?? brackets[brackets.length - 1]!
+    return { rows: irrigated.filter((r) => (r.up_to_depth_in ?? Infinity) === limit), method }
   }
   if (method !== 'broadcast_incorporated') return { rows: rows.filter((r) => r.method === method), method }
+  const hours = application.incorporatedWithinHours
   const brackets = [...new Set(rows.filter((r) => r.method === method).map((r) => r.within_hours ?? Infinity))].sort((a, b) => a - b)
   let limit: number | undefined
   if (hours === undefined) {
@@ -85,7 +111,9 @@ function pickByHours<T extends { method: string; within_hours?: number }>(
  * N, "% of total" sets: available = total N × year-1 fraction (e.g. UMN Table 1).
  * N, retention sets: available = ammonium-N × retention + organic N × year-1 release (Alberta
  * NMP Guide, Table 4.3.4 and p. 214). `nAvailability` replaces both; `ammoniumRetention` and
- * `organicNRelease` together replace a "% of total" row. P2O5 and K2O: amount × availability.
+ * `organicNRelease` together replace a "% of total" row. Irrigated manure takes the set's
+ * irrigated row for the depth of one pass (`irrigationDepthIn`; e.g. 80 % of ammonium-N above
+ * 0.4 in, 40 % at or below, Univ. of Nebraska–Lincoln 2022). P2O5 and K2O: amount × availability.
  * Never throws; where a set has no row the nearest sensible row is used and a warning says so.
  */
 export function computeAvailability(
@@ -111,7 +139,7 @@ export function computeAvailability(
 
   const model = set.nitrogen
   if (model.model === 'pct_of_total') {
-    const picked = pickByHours(model.rows, application.method, application.incorporatedWithinHours, warnings)
+    const picked = pickRows(model.rows, application, warnings)
     let row = picked.rows.find((r) => matches(r.species, manure.species) && matches(r.form, manure.form))
     if (!row) {
       const candidates = picked.rows.filter((r) => matches(r.form, manure.form))
@@ -152,9 +180,15 @@ export function computeAvailability(
       })
     }
   } else {
-    const picked = pickByHours(model.ammonium_retention, application.method, application.incorporatedWithinHours, warnings)
+    const picked = pickRows(model.ammonium_retention, application, warnings)
     const conditions = application.conditions ?? 'average'
-    const ret = picked.rows.find((r) => r.conditions === conditions) ?? picked.rows.find((r) => r.conditions === 'average')!
+    let ret = picked.rows.find((r) => r.conditions === conditions)
+    if (!ret) {
+      ret = picked.rows.find((r) => r.conditions === 'average') ?? picked.rows[0]!
+      if (application.conditions !== undefined) {
+        warnings.push({ code: 'conditions_unused', message: `${set.name} has no ${conditions.replace('_', '-')} factor for ${picked.method.replace('_', ' ')} manure; used the ${ret.conditions.replace('_', '-')} one` })
+      }
+    }
     const dm = analysis.dryMatterPct
     const rel =
       model.organic_release.find(

@@ -172,6 +172,7 @@ export function computeCropNeed(input: CropNeedInput, set: ReferenceSet): CropNe
       return { need: removalLb, cls: null }
     }
     sourceIds.push(row.source)
+    if (row.maintenance_limit_source !== undefined) sourceIds.push(row.maintenance_limit_source)
     const cls = computeSoilTestClass(ppm, row)
     if (cls === 'build_up') sourceIds.push(row.buildup_source)
     return { need: computeSoilTestNeed(removalLb, ppm, row), cls }

@@ -30,6 +30,8 @@ describe('parseRateCase', () => {
     { name: 'a missing ammonium-N', edit: (c) => delete c.manure.ammonium_n, path: 'manure.ammonium_n', says: '' },
     { name: 'an availability above 1', edit: (c) => (c.application.p2o5_availability = 1.5), path: 'application.p2o5_availability', says: '' },
     { name: 'incorporation hours with injection', edit: (c) => (c.application.method = 'injected'), path: 'application.incorporated_within_hours', says: 'broadcast_incorporated only' },
+    { name: 'an irrigation depth with another method', edit: (c) => (c.application.irrigation_depth_in = 0.5), path: 'application.irrigation_depth_in', says: 'irrigated only' },
+    { name: 'a zero irrigation depth', edit: (c) => Object.assign(c.application, { method: 'irrigated', incorporated_within_hours: undefined, irrigation_depth_in: 0 }), path: 'application.irrigation_depth_in', says: '' },
     { name: 'n_availability with its parts', edit: (c) => Object.assign(c.application, { n_availability: 0.5, ammonium_retention: 0.7 }), path: 'application.n_availability', says: 'replaces' },
     { name: 'neither need nor crop', edit: (c) => delete c.need, path: 'need', says: 'give need' },
     { name: 'a soil test without its method', edit: (c) => (c.crop = { name: 'corn_grain', yield_goal: 180, soil_test_p_ppm: 15 }), path: 'crop.soil_test_p_method', says: 'mehlich3' },
@@ -48,6 +50,12 @@ describe('parseRateCase', () => {
     const text = formatProblems(problems)
     expect(text).toContain(`${path}: `)
     expect(text).toContain(says)
+  })
+
+  it('accepts an irrigation depth with irrigated manure', () => {
+    const c = clone()
+    c.application = { method: 'irrigated', irrigation_depth_in: 0.5 }
+    expect(parseRateCase(c).problems).toEqual([])
   })
 
   it('refuses text that is not JSON with the parser reason', () => {

@@ -43,6 +43,8 @@ const manureSchema = z.strictObject({
 const applicationSchema = z.strictObject({
   method: z.enum(methodValues),
   incorporated_within_hours: nonNegative.optional(),
+  /** Inches one irrigation pass puts on (irrigated only); sets with depth classes assume the shallowest without it. */
+  irrigation_depth_in: positive.optional(),
   /** Weather class for sets that have one (Alberta Table 4.3.4); default average. */
   conditions: z.enum(conditionsValues).optional(),
   ammonium_retention: fraction.optional(),
@@ -149,6 +151,9 @@ export function parseRateCase(
   const a = c.application
   if (a.incorporated_within_hours !== undefined && a.method !== 'broadcast_incorporated') {
     add(['application', 'incorporated_within_hours'], 'not_for_method', `applies to broadcast_incorporated only, not ${a.method}`)
+  }
+  if (a.irrigation_depth_in !== undefined && a.method !== 'irrigated') {
+    add(['application', 'irrigation_depth_in'], 'not_for_method', `applies to irrigated only, not ${a.method}`)
   }
   if (a.n_availability !== undefined && (a.ammonium_retention !== undefined || a.organic_n_release !== undefined)) {
     add(['application', 'n_availability'], 'conflicting_fields', 'n_availability replaces ammonium_retention and organic_n_release; give one or the other')

@@ -225,9 +225,34 @@ describe('computeRate', () => {
   })
 
   it('warns when irrigated manure has no factor in the set and uses broadcast', () => {
-    const r = computeRate({ ...montana, application: { method: 'irrigated' } })
+    const r = computeRate({ ...montana, application: { method: 'irrigated' }, reference_set: 'umn-pct-total-n' })
     expect(r.warnings.map((w) => w.code)).toContain('irrigation_as_broadcast')
-    expect(r.factors.ammonium_retention).toBe(0.34) // Alberta Table 4.3.4, not incorporated, average
+    expect(r.factors.n_first_year_fraction).toBe(0.25) // UMN Table 1, beef, incorporated after more than 96 h
+  })
+
+  it('credits sprinkler-irrigated liquid by the depth of one pass (UNL 2022: 80 % of ammonium-N above 0.4 in)', () => {
+    const irrigated: RateCase = {
+      manure: { form: 'liquid', species: 'swine', units: 'lb_per_1000gal', basis: 'as_is', total_n: 42, ammonium_n: 30, p2o5: 25, k2o: 30 },
+      application: { method: 'irrigated', irrigation_depth_in: 0.6 },
+      need: { n: 135 },
+      basis: 'n',
+      units: 'us',
+    }
+    const deep = computeRate(irrigated)
+    // 30 × 0.8 (UNL 2022) + 12 × 0.25 (Alberta NMP Guide p. 214) = 27 lb available N per 1000 gal
+    expect(deep.available.n).toBeCloseTo(27, 6)
+    expect(deep.rate).toBeCloseTo(5000, 2) // 135 lb ÷ 27 lb per 1000 gal
+    expect(deep.sources.map((x) => x.id)).toContain('unl-irrigation-2022')
+    const shallow = computeRate({ ...irrigated, application: { method: 'irrigated' } })
+    expect(shallow.available.n).toBeCloseTo(30 * 0.4 + 12 * 0.25, 6) // UNL 2022: 40 % at 0.4 in or less
+    expect(shallow.warnings.map((w) => w.code)).toContain('irrigation_depth_assumed')
+  })
+
+  it('computes the wheat N need from the yield goal instead of requiring need.n (Oklahoma State: 2 lb N/bu)', () => {
+    const r = computeRate({ ...montana, need: undefined, crop: { name: 'wheat', yield_goal: 70, previous_crop: 'soybean' } } as RateCase)
+    expect(r.need.n).toBeCloseTo(140 - 30, 6) // 70 bu × 2 lb, less the 30 lb soybean credit (Missouri EQ392)
+    expect(r.rates.n).toBeCloseTo(110 / 8.53, 1)
+    expect(r.warnings.map((w) => w.code)).not.toContain('no_n_guidance')
   })
 })
 

@@ -139,6 +139,7 @@ export function computeRate(c: RateCase, options: { referenceSet?: ReferenceSet 
     {
       method: a.method,
       ...(a.incorporated_within_hours !== undefined && { incorporatedWithinHours: a.incorporated_within_hours }),
+      ...(a.irrigation_depth_in !== undefined && { irrigationDepthIn: a.irrigation_depth_in }),
       ...(a.conditions !== undefined && { conditions: a.conditions }),
       ...(a.ammonium_retention !== undefined && { ammoniumRetention: a.ammonium_retention }),
       ...(a.organic_n_release !== undefined && { organicNRelease: a.organic_n_release }),

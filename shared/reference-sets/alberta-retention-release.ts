@@ -4,14 +4,15 @@ import type { ReferenceSet } from './reference-set.ts'
 /**
  * Nitrogen as ammonium-N retained (by incorporation delay and weather) plus organic N released
  * (Alberta Agriculture, Nutrient Management Planning Guide, Table 4.3.4 and p. 214), with
- * later-year organic-N release from Cornell's guidelines and a yield-goal N need for corn.
+ * later-year organic-N release from Cornell's guidelines, ammonium-N kept by sprinkler
+ * irrigation by depth per pass (Univ. of Nebraska–Lincoln 2022) and a yield-goal N need for corn.
  */
 export const albertaRetentionRelease: ReferenceSet = {
   name: 'alberta-retention-release',
-  version: '2027.1',
+  version: '2027.2',
   title: 'Ammonium-N retention plus organic-N release (Alberta Agriculture, Nutrient Management Planning Guide)',
   description:
-    'Available N = ammonium-N × retention + organic N × release. Retention by incorporation delay and weather class; organic-N release 25 % in year 1, 12 % and 5 % in the next two years.',
+    'Available N = ammonium-N × retention + organic N × release. Retention by incorporation delay and weather class; sprinkler-irrigated liquid keeps 80 % of ammonium-N above 0.4 in per pass and 40 % at or below (Nebraska, no weather classes); organic-N release 25 % in year 1, 12 % and 5 % in the next two years.',
   sources: [
     {
       id: 'alberta-nmp-table434',
@@ -35,6 +36,14 @@ export const albertaRetentionRelease: ReferenceSet = {
       publisher: 'Alberta Agriculture and Food',
       year: null,
       confidence: 'M',
+    },
+    {
+      id: 'unl-irrigation-2022',
+      title: 'New UNL Manure Nitrogen Crediting Recommendations for Crop Fertility: ammonium-N availability from sprinkler irrigation 80 % when applied at more than 0.4 inches, 40 % at or less than 0.4 inches',
+      publisher: 'University of Nebraska–Lincoln, CropWatch (Iqbal, Johnson, Millmier Schmidt, Kurtzhals)',
+      year: 2022,
+      url: 'https://cropwatch.unl.edu/2022/new-unl-manure-nitrogen-crediting-recommendations-crop-fertility',
+      confidence: 'H',
     },
     {
       id: 'cornell-css412',
@@ -63,6 +72,9 @@ export const albertaRetentionRelease: ReferenceSet = {
       ...retention('broadcast_incorporated', 96, [0.6, 0.83, 0.74, 0.56, 0.28]),
       ...retention('broadcast_incorporated', 120, [0.55, 0.8, 0.7, 0.5, 0.2]),
       ...retention('broadcast', undefined, [0.34, 0.6, 0.5, 0.25, 0.0]),
+      // Nebraska gives no weather classes: one average row per depth class.
+      { method: 'irrigated', up_to_depth_in: 0.4, conditions: 'average', value: 0.4, source: 'unl-irrigation-2022', note: 'sprinkler (pivot) irrigation, 0.4 in or less per pass' },
+      { method: 'irrigated', conditions: 'average', value: 0.8, source: 'unl-irrigation-2022', note: 'sprinkler (pivot) irrigation, more than 0.4 in per pass' },
     ],
     organic_release: [
       { species: 'any', form: 'any', year1: 0.25, year2: 0.12, year3: 0.05, source: 'alberta-nmp-organic', note: 'years 2 and 3 from Cornell CSS 412 (12 % and 5 %)' },

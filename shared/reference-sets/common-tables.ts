@@ -53,6 +53,21 @@ export const commonSources: ReferenceSource[] = [
     confidence: 'M',
   },
   {
+    id: 'wfh-1995-n',
+    title: 'Western Fertilizer Handbook, 8th ed. (1995), nitrogen requirements of crops: corn silage 30 tons 250 lb N/ac, wheat 3 tons 175 lb N/ac (read as reprinted in a county dairy fact sheet, Table 3)',
+    publisher: 'San Joaquin County (Calif.) Environmental Health, Fact Sheet No. 4 for Dairies, citing the Western Fertilizer Handbook',
+    year: 1995,
+    confidence: 'M',
+  },
+  {
+    id: 'okstate-wheat-n',
+    title: 'Nitrogen requirements for winter wheat (grain only): N = 2 lb per bushel of yield goal − soil-test nitrate-N (Zhang and Edwards, Oklahoma State University, as reported)',
+    publisher: 'Oklahoma State University Extension, reported by Oklahoma Farm Report',
+    year: 2011,
+    url: 'http://oklahomafarmreport.com/wire/news/2011/09/01888_NitrogenRequirements09262011_161132.php',
+    confidence: 'M',
+  },
+  {
     id: 'usda-ah697',
     title: 'Weights, Measures, and Conversion Factors for Agricultural Commodities and Their Products (AH-697): bushel weights corn 56 lb, soybean and wheat 60 lb',
     publisher: 'USDA Economic Research Service',
@@ -102,6 +117,22 @@ export const commonSources: ReferenceSource[] = [
     confidence: 'L',
   },
   {
+    id: 'osu-agbmps-bray',
+    title: 'Soil test P levels less than 50 ppm: Bray P1 critical level 15 ppm (corn/soybean) and 25 ppm (rotations with wheat or alfalfa) from the Tri-State recommendations (Vitosh et al., 1995); no additional fertilizer for crop production above 50 ppm Bray P1',
+    publisher: 'The Ohio State University, Agricultural BMPs',
+    year: null,
+    url: 'https://agbmps.osu.edu/scenario/soil-test-p-levels-less-50-ppm-or-p-risk-index-low-medium',
+    confidence: 'H',
+  },
+  {
+    id: 'umn-olsen-rehm',
+    title: 'Phosphate is not likely to increase corn yields above 20 ppm Bray or 16 ppm Olsen P (G. Rehm, University of Minnesota Extension, as reported)',
+    publisher: 'Corn+Soybean Digest (Farm Progress)',
+    year: null,
+    url: 'https://www.farmprogress.com/soil-test-making-fertilizer-decisions',
+    confidence: 'M',
+  },
+  {
     id: 'usu-cnmp-step5',
     title: 'CNMP Step 5.1, Manure Application Rate: soil-test P below 50 ppm N- or P-based; 50–100 ppm crop P removal; above 100 ppm no manure',
     publisher: 'Utah State University Extension',
@@ -122,6 +153,37 @@ export const commonSources: ReferenceSource[] = [
     publisher: 'University of Georgia Extension',
     year: null,
     confidence: 'H',
+  },
+  {
+    id: 'sare-bsbc-2010',
+    title: 'Building Soils for Better Crops, 3rd ed., Table 12.1 Typical Manure Characteristics: dairy cow, beef cow, chicken and hog manure, solid (lb/ton) and liquid (lb/1,000 gal), with dry matter (read in an HTML copy of the book)',
+    publisher: 'SARE Outreach (Magdoff and van Es)',
+    year: 2010,
+    url: 'https://www.sare.org/publications/building-soils-for-better-crops/animal-manures-for-increasing-organic-matter-and-supplying-nutrients/',
+    confidence: 'M',
+  },
+  {
+    id: 'ndsu-nm1259-2021',
+    title: 'Solid Manure Sampling for Nutrient Management Planning (NM1259): N in solid beef manure in North Dakota ranges from 4 to 32 lb/ton (from NM2007, Nutrient Characteristics of Solid Beef Manure in North Dakota)',
+    publisher: 'North Dakota State University Extension',
+    year: 2021,
+    url: 'https://www.ag.ndsu.edu/publications/livestock/solid-manure-sampling-for-nutrient-management-planning/',
+    confidence: 'H',
+  },
+  {
+    id: 'midatlantic-ch9',
+    title: 'Mid-Atlantic Nutrient Management Handbook, Chapter 9, Manure as a Nutrient Source (D. Hansen, Univ. of Delaware): layer manure 35 lb N, 42 lb P2O5, 28 lb K2O per ton (read in a reprint of the chapter presentation)',
+    publisher: 'Mid-Atlantic Regional Water Program',
+    year: null,
+    confidence: 'M',
+  },
+  {
+    id: 'umn-book-range',
+    title: 'Organic manures testing: University of Minnesota research found manure analyses ranging from 25 to 300 percent of the average (book) values (as reported by a testing laboratory)',
+    publisher: 'BSHAT Research (testing laboratory), reporting University of Minnesota bulletins',
+    year: null,
+    url: 'https://bshatresearch.com/organic-manures-testing-service',
+    confidence: 'M',
   },
   {
     id: 'utk-variability',
@@ -147,7 +209,8 @@ export const commonCrops: ReferenceSet['crops'] = [
     lb_per_yield_unit: 2000,
     lb_per_yield_unit_source: 'definition',
     removal: { n: 13, p2o5: 5.6, k2o: 7, source: 'ndsu-forage-2021' },
-    n_guidance: { kind: 'none', note: 'no published N guideline collected for corn silage; give need.n' },
+    // 250 lb N for 30 tons (Western Fertilizer Handbook); a crop requirement, before credits.
+    n_guidance: { kind: 'yield_goal', lb_n_per_yield_unit: 8.33, source: 'wfh-1995-n' },
     soil_test_group: 'corn_soybean',
   },
   {
@@ -167,7 +230,7 @@ export const commonCrops: ReferenceSet['crops'] = [
     lb_per_yield_unit: 60,
     lb_per_yield_unit_source: 'usda-ah697',
     removal: { n: 1.2, p2o5: 0.59, k2o: 0.36, source: 'omafra-removal-2025', note: 'midpoints of the published ranges 1.15–1.25, 0.55–0.63, 0.35–0.37 lb/bu' },
-    n_guidance: { kind: 'none', note: 'no published N guideline collected for wheat; give need.n' },
+    n_guidance: { kind: 'yield_goal', lb_n_per_yield_unit: 2, source: 'okstate-wheat-n' },
     soil_test_group: 'wheat_alfalfa',
   },
   {
@@ -201,6 +264,45 @@ export const cornGrainRemoval: ReferenceSet['crops'][number]['removal'] = {
   note: 'N and P2O5 midpoints of 0.65–1.0 and 0.37–0.44 lb/bu; K2O 0.27 lb/bu (IPNI 2008, within OMAFRA 0.26–0.30)',
 }
 
+/** Liquid book values stand for pits, tanks and basins; lagoon liquid is far thinner (under 1 % solids). */
+const LIQUID_NOT_LAGOON: ('deep_pit' | 'earthen_basin' | 'tank' | 'other')[] = ['deep_pit', 'earthen_basin', 'tank', 'other']
+
+/** A book-value row from typical values alone: low and high are typical × 0.25 and × 3 (book_value_spread). */
+function spread(r: {
+  species: 'swine' | 'dairy' | 'beef' | 'poultry'
+  form: 'liquid' | 'solid'
+  storage: string
+  n: number
+  p2o5: number
+  k2o: number
+  dm: number | null
+  source: string
+  kinds?: ('deep_pit' | 'earthen_basin' | 'lagoon' | 'tank' | 'stack' | 'other')[]
+}): ReferenceSet['book_values'][number] {
+  const band = (typical: number) => ({ typical, low: typical * BOOK_LOW, high: typical * BOOK_HIGH })
+  return {
+    species: r.species,
+    form: r.form,
+    storage: r.storage,
+    total_n: band(r.n),
+    ammonium_n: null,
+    p2o5: band(r.p2o5),
+    k2o: band(r.k2o),
+    dry_matter_pct: r.dm === null ? null : band(r.dm),
+    ...(r.kinds ? { storage_kinds: r.kinds } : {}),
+    source: r.source,
+    note: 'low and high are typical × 0.25 and × 3 (book_value_spread)',
+  }
+}
+
+/**
+ * Analyses ranged from 25 to 300 % of the average (book) values (Univ. of Minnesota, as reported);
+ * an individual farm's analysis can differ from them by 50 % or more (Univ. of Tennessee). The
+ * wide band flags unit and entry errors without flagging ordinary farm-to-farm spread.
+ */
+const BOOK_LOW = 0.25
+const BOOK_HIGH = 3
+
 export const commonTables: Common = {
   legume_credits: [
     { previous_crop: 'soybean', lb_n_per_acre: 30, source: 'missouri-eq392' },
@@ -228,6 +330,40 @@ export const commonTables: Common = {
       source: 'tristate-2020',
       buildup_source: 'tristate-1995-buildup',
     },
+    {
+      method: 'bray1',
+      soil_test_group: 'corn_soybean',
+      critical_ppm: 15,
+      maintenance_limit_ppm: 50,
+      build_years: 4,
+      buildup_lb_per_ppm: 20,
+      source: 'osu-agbmps-bray',
+      buildup_source: 'tristate-1995-buildup',
+      note: 'the 1995 Tri-State levels in Bray P1; 50 ppm is the level above which no rotation crop needs more P',
+    },
+    {
+      method: 'bray1',
+      soil_test_group: 'wheat_alfalfa',
+      critical_ppm: 25,
+      maintenance_limit_ppm: 50,
+      build_years: 4,
+      buildup_lb_per_ppm: 20,
+      source: 'osu-agbmps-bray',
+      buildup_source: 'tristate-1995-buildup',
+      note: 'the 1995 Tri-State levels in Bray P1; 50 ppm is the level above which no rotation crop needs more P',
+    },
+    ...(['corn_soybean', 'wheat_alfalfa'] as const).map((group) => ({
+      method: 'olsen' as const,
+      soil_test_group: group,
+      critical_ppm: 16,
+      maintenance_limit_ppm: 100,
+      build_years: 4,
+      buildup_lb_per_ppm: 20,
+      source: 'umn-olsen-rehm',
+      buildup_source: 'tristate-1995-buildup',
+      maintenance_limit_source: 'usu-cnmp-step5',
+      note: 'critical level: the Olsen P above which corn is unlikely to respond (Minnesota; no separate value found for wheat and alfalfa); maintenance to 100 ppm, where Utah CNMP guidance allows crop P removal and no more; build-up per ppm is the Bray-based Tri-State 1995 figure',
+    })),
   ],
   soil_test_k: [
     {
@@ -272,21 +408,22 @@ export const commonTables: Common = {
       p2o5: { typical: 35.5, low: 17, high: 54 },
       k2o: { typical: 35.5, low: 23, high: 48 },
       dry_matter_pct: null,
+      storage_kinds: LIQUID_NOT_LAGOON,
       source: 'iowa-pmr1003',
       note: 'low and high are the published range across finishing facilities; typical is its midpoint',
     },
+    spread({ species: 'poultry', form: 'solid', storage: 'broiler litter', n: 62, p2o5: 62, k2o: 56, dm: null, source: 'uga-c933' }),
+    spread({ species: 'poultry', form: 'solid', storage: 'layer manure', n: 35, p2o5: 42, k2o: 28, dm: null, source: 'midatlantic-ch9' }),
+    spread({ species: 'dairy', form: 'liquid', storage: 'slurry (pit, tank or basin)', n: 25, p2o5: 9, k2o: 20, dm: 7, source: 'sare-bsbc-2010', kinds: LIQUID_NOT_LAGOON }),
+    spread({ species: 'dairy', form: 'solid', storage: 'solid, with bedding', n: 10, p2o5: 6, k2o: 7, dm: 26, source: 'sare-bsbc-2010' }),
     {
-      species: 'poultry',
-      form: 'solid',
-      storage: 'broiler litter',
-      total_n: { typical: 62, low: 31, high: 93 },
-      ammonium_n: null,
-      p2o5: { typical: 62, low: 31, high: 93 },
-      k2o: { typical: 56, low: 28, high: 84 },
-      dry_matter_pct: null,
-      source: 'uga-c933',
-      note: 'low and high are typical × 0.5 and × 1.5 (book_value_spread)',
+      ...spread({ species: 'beef', form: 'solid', storage: 'feedlot or bedded pack', n: 14, p2o5: 9, k2o: 11, dm: 23, source: 'sare-bsbc-2010' }),
+      total_n: { typical: 14, low: 4, high: 32 },
+      note: 'typical values from SARE Table 12.1; the total N range is the 4–32 lb/ton measured across North Dakota solid beef manure (NDSU NM1259); P2O5, K2O and dry matter typical × 0.25 and × 3',
     },
+    spread({ species: 'beef', form: 'liquid', storage: 'liquid (pit or basin)', n: 39, p2o5: 25, k2o: 31, dm: 8, source: 'sare-bsbc-2010', kinds: LIQUID_NOT_LAGOON }),
+    spread({ species: 'swine', form: 'solid', storage: 'solid (as published: 9 % dry matter)', n: 10, p2o5: 6, k2o: 9, dm: 9, source: 'sare-bsbc-2010' }),
+    spread({ species: 'poultry', form: 'liquid', storage: 'liquid', n: 70, p2o5: 70, k2o: 33, dm: 17, source: 'sare-bsbc-2010', kinds: LIQUID_NOT_LAGOON }),
   ],
-  book_value_spread: { low: 0.5, high: 1.5, source: 'utk-variability' },
+  book_value_spread: { low: BOOK_LOW, high: BOOK_HIGH, source: 'umn-book-range' },
 }

@@ -24,6 +24,8 @@ export const previousCropValues = [
   'other',
 ] as const
 export const soilTestMethodValues = ['bray1', 'olsen', 'mehlich3'] as const
+/** Kinds of manure storage a book-value row can stand for (the storages file uses the same words). */
+export const storageKindValues = ['deep_pit', 'earthen_basin', 'lagoon', 'tank', 'stack', 'other'] as const
 
 export type Species = (typeof speciesValues)[number]
 export type ApplicationMethod = (typeof methodValues)[number]
@@ -31,6 +33,7 @@ export type Conditions = (typeof conditionsValues)[number]
 export type CropName = (typeof cropNameValues)[number]
 export type PreviousCrop = (typeof previousCropValues)[number]
 export type SoilTestMethod = (typeof soilTestMethodValues)[number]
+export type StorageKindName = (typeof storageKindValues)[number]
 
 const fraction = z.number().min(0).max(1)
 const nonNegative = z.number().min(0)
@@ -55,6 +58,8 @@ const pctRowSchema = z.strictObject({
   method: z.enum(methodValues),
   /** For broadcast_incorporated: the row applies when incorporated within this many hours. */
   within_hours: z.number().positive().optional(),
+  /** For irrigated: the row applies when one pass puts on at most this many inches (omit for deeper passes). */
+  up_to_depth_in: z.number().positive().optional(),
   /** Fraction of total N available in the year of application and the two following years. */
   year1: fraction,
   year2: fraction,
@@ -66,6 +71,8 @@ const pctRowSchema = z.strictObject({
 const retentionRowSchema = z.strictObject({
   method: z.enum(methodValues),
   within_hours: z.number().positive().optional(),
+  /** For irrigated: the row applies when one pass puts on at most this many inches (omit for deeper passes). */
+  up_to_depth_in: z.number().positive().optional(),
   conditions: z.enum(conditionsValues),
   /** Fraction of ammonium-N kept for the crop. */
   value: fraction,
@@ -158,6 +165,8 @@ const soilClassRowSchema = z.strictObject({
   buildup_lb_per_ppm: nonNegative,
   source: sourceId,
   buildup_source: sourceId,
+  /** Where the maintenance limit comes from, when another source than the critical level's. */
+  maintenance_limit_source: sourceId.optional(),
   note: z.string().optional(),
 })
 
@@ -183,6 +192,8 @@ const bookValueSchema = z.strictObject({
   p2o5: rangeSchema,
   k2o: rangeSchema,
   dry_matter_pct: rangeSchema.nullable(),
+  /** The storage kinds this row stands for (omit for any); a lagoon's liquid is far thinner than a pit's. */
+  storage_kinds: z.array(z.enum(storageKindValues)).min(1).optional(),
   source: sourceId,
   note: z.string().optional(),
 })
@@ -233,6 +244,16 @@ export const referenceSetSchema = z
         }
       })
     }
+    const nRows = set.nitrogen.model === 'pct_of_total' ? set.nitrogen.rows : set.nitrogen.ammonium_retention
+    const nKey = set.nitrogen.model === 'pct_of_total' ? 'rows' : 'ammonium_retention'
+    nRows.forEach((r, i) => {
+      if (r.up_to_depth_in !== undefined && r.method !== 'irrigated') {
+        ctx.addIssue({ code: 'custom', path: ['nitrogen', nKey, i, 'up_to_depth_in'], message: `applies to irrigated rows only, not ${r.method}` })
+      }
+      if (r.within_hours !== undefined && r.method !== 'broadcast_incorporated') {
+        ctx.addIssue({ code: 'custom', path: ['nitrogen', nKey, i, 'within_hours'], message: `applies to broadcast_incorporated rows only, not ${r.method}` })
+      }
+    })
     set.book_values.forEach((b, i) => {
       for (const key of ['total_n', 'ammonium_n', 'p2o5', 'k2o', 'dry_matter_pct'] as const) {
         const r = b[key]

@@ -1,6 +1,6 @@
 import { AppError } from '../errors.ts'
 import { albertaRetentionRelease } from './alberta-retention-release.ts'
-import type { ReferenceSet, ReferenceSource, Species } from './reference-set.ts'
+import type { BookValueRow, ReferenceSet, ReferenceSource, Species, StorageKindName } from './reference-set.ts'
 import { umnPctTotalN } from './umn-pct-total-n.ts'
 
 const builtIn: readonly ReferenceSet[] = [albertaRetentionRelease, umnPctTotalN]
@@ -47,23 +47,14 @@ export interface BookValues {
   p2o5: BookRange
   k2o: BookRange
   dryMatterPct: BookRange | null
+  /** The storage kinds the row stands for; null for any kind. */
+  storageKinds: StorageKindName[] | null
   source: ReferenceSource
   referenceSet: string
   note?: string
 }
 
-/**
- * Book values for a species and form from a reference set (default set when omitted), for
- * plausibility warnings on lab results and for plans made before a lab result exists.
- * Returns null when the set has no book values for that species and form. Never throws.
- */
-export function findBookValues(
-  species: Species,
-  form: 'liquid' | 'solid',
-  set: ReferenceSet = findReferenceSet(defaultReferenceSetName),
-): BookValues | null {
-  const row = set.book_values.find((b) => b.species === species && b.form === form)
-  if (!row) return null
+function toBookValues(row: BookValueRow, set: ReferenceSet): BookValues {
   const source = set.sources.find((s) => s.id === row.source)!
   return {
     species: row.species,
@@ -75,8 +66,40 @@ export function findBookValues(
     p2o5: row.p2o5,
     k2o: row.k2o,
     dryMatterPct: row.dry_matter_pct,
+    storageKinds: row.storage_kinds ?? null,
     source,
     referenceSet: set.name,
     ...(row.note ? { note: row.note } : {}),
   }
+}
+
+/**
+ * Book values for a species and form from a reference set (default set when omitted), for
+ * plausibility warnings on lab results and for plans made before a lab result exists.
+ * Without `kind` the set's first row for that species and form; with `kind` (the storage kind,
+ * e.g. "lagoon") the first row that stands for that kind, else the first row that names no kinds.
+ * Returns null when the set has none (a lagoon gets none from rows written for pits). Never throws.
+ */
+export function findBookValues(
+  species: Species,
+  form: 'liquid' | 'solid',
+  set: ReferenceSet = findReferenceSet(defaultReferenceSetName),
+  kind?: string,
+): BookValues | null {
+  const rows = set.book_values.filter((b) => b.species === species && b.form === form)
+  const row =
+    kind === undefined
+      ? rows[0]
+      : (rows.find((b) => b.storage_kinds?.includes(kind as StorageKindName)) ?? rows.find((b) => b.storage_kinds === undefined))
+  return row ? toBookValues(row, set) : null
+}
+
+/** Every book-value row of a set (default set when omitted), optionally for one species and form, in set order. Never throws. */
+export function listBookValues(
+  filter: { species?: Species; form?: 'liquid' | 'solid' } = {},
+  set: ReferenceSet = findReferenceSet(defaultReferenceSetName),
+): BookValues[] {
+  return set.book_values
+    .filter((b) => (filter.species === undefined || b.species === filter.species) && (filter.form === undefined || b.form === filter.form))
+    .map((b) => toBookValues(b, set))
 }

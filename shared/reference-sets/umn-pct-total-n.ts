@@ -8,7 +8,7 @@ import type { ReferenceSet } from './reference-set.ts'
  */
 export const umnPctTotalN: ReferenceSet = {
   name: 'umn-pct-total-n',
-  version: '2027.1',
+  version: '2027.2',
   title: 'Share of total N available by species, method and incorporation (University of Minnesota Extension)',
   description:
     'First-year N available as a fraction of total N; year-2 and year-3 fractions give the residual credits. Injection uses the knife/coulter column; broadcast without incorporation uses the >96 h column.',
