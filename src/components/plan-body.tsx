@@ -350,8 +350,16 @@ function Notes({ plan }: { plan: PlanView }) {
   )
 }
 
+function capacityOf(g: StorageGroup): number | null {
+  for (const f of g.fields) {
+    const c = f.loads && typeof f.loads === 'object' ? num((f.loads as { capacity?: unknown }).capacity) : null
+    if (c !== null) return c
+  }
+  return null
+}
+
 /** The applicator's sheet: only on paper. */
-function PrintSheet({ plan, groups }: { plan: PlanView; groups: StorageGroup[] }) {
+function PrintSheet({ plan, groups, fieldNames }: { plan: PlanView; groups: StorageGroup[]; fieldNames: Map<string, string | null> }) {
   return (
     <div className="only-print">
       <h1 className="text-lg font-semibold">
@@ -362,7 +370,10 @@ function PrintSheet({ plan, groups }: { plan: PlanView; groups: StorageGroup[] }
       </p>
       {groups.map((g) => (
         <section key={g.code} className="mt-3">
-          <h2 className="font-semibold">From {storageTitle(g)}</h2>
+          <h2 className="font-semibold">
+            From {storageTitle(g)}
+            {capacityOf(g) !== null && <span className="font-normal"> · loads of {fmt(capacityOf(g))} {g.amountUnit}</span>}
+          </h2>
           <table className="data sheet">
             <thead>
               <tr>
@@ -380,7 +391,10 @@ function PrintSheet({ plan, groups }: { plan: PlanView; groups: StorageGroup[] }
             <tbody>
               {g.fields.map((f) => (
                 <tr key={f.field}>
-                  <th scope="row" className="text-left">{f.field}</th>
+                  <th scope="row" className="text-left">
+                    {f.field}
+                    {fieldNames.get(f.field) && <span className="font-normal"> {fieldNames.get(f.field)}</span>}
+                  </th>
                   <td className="num">{fmt(f.acres, 1)}</td>
                   <td>{label(f.method)}</td>
                   <td className="num font-semibold">{fmt(f.rate, rateDigits(g.rateUnit))}</td>
@@ -407,7 +421,7 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
   for (const f of fields) if (typeof f.name === 'string' && f.name) fieldNames.set(f.field, f.name)
   return (
     <div className="space-y-8">
-      <PrintSheet plan={plan} groups={groups} />
+      <PrintSheet plan={plan} groups={groups} fieldNames={fieldNames} />
       <dl className="no-print grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
         <div><dt className="text-muted">Computed</dt><dd>{dateTime(plan.created_at)}</dd></div>
         <div><dt className="text-muted">By</dt><dd className="break-all">{plan.created_by}</dd></div>
