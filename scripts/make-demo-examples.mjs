@@ -81,15 +81,15 @@ function volumeFt3(s, h) {
 }
 // profile: typical as-is analysis (lb per 1000 gal or per ton), ammonium share, within-round CV
 const storages = [
-  { farm: 'QBF', storage: 'P1', name: 'North barn pit', kind: 'deep_pit', species: 'swine', form: 'liquid', shape: 'rectangular', length_ft: 200, width_ft: 41, depth_ft: 8, freeboard_ft: 1, fill: 0.84, access_points: 4, notes: 'Pump-out ports along the east wall.', profile: { dm: 6.0, n: 56, nh4: 0.7, p: 38, k: 34, s: 4.2, ph: 7.6, cv: 0.15 }, bounds: { n: [33, 78], p: [18, 53], k: [24, 47] } },
-  { farm: 'QBF', storage: 'P2', name: 'South barn pit', kind: 'deep_pit', species: 'swine', form: 'liquid', shape: 'rectangular', length_ft: 200, width_ft: 41, depth_ft: 8, freeboard_ft: 1, fill: 0.78, access_points: 4, notes: 'Pump-out ports along the east wall.', profile: { dm: 5.4, n: 51, nh4: 0.72, p: 33, k: 33, s: 4.0, ph: 7.7, cv: 0.14 }, bounds: { n: [33, 78], p: [18, 53], k: [24, 47] } },
-  { farm: 'FCD', storage: 'BASIN', name: 'Main earthen basin', kind: 'earthen_basin', species: 'dairy', form: 'liquid', shape: 'basin', length_ft: 180, width_ft: 120, depth_ft: 14, side_slope: 3, freeboard_ft: 2, fill: 0.8, access_points: 3, notes: 'Agitation and pump-out from the ramp (A) and two bank stations (B, C).', profile: { dm: 6.8, n: 26, nh4: 0.46, p: 12.5, k: 24, s: 2.6, ph: 7.3, cv: 0.16 } },
+  { farm: 'QBF', storage: 'P1', name: 'North barn pit', kind: 'deep_pit', species: 'swine', form: 'liquid', shape: 'rectangular', length_ft: 400, width_ft: 51, depth_ft: 8, freeboard_ft: 1, fill: 0.84, access_points: 4, notes: 'Pump-out ports along the east wall.', profile: { dm: 6.0, n: 56, nh4: 0.7, p: 38, k: 34, s: 4.2, ph: 7.6, cv: 0.15 }, bounds: { n: [33, 78], p: [18, 53], k: [24, 47] } },
+  { farm: 'QBF', storage: 'P2', name: 'South barn pit', kind: 'deep_pit', species: 'swine', form: 'liquid', shape: 'rectangular', length_ft: 400, width_ft: 51, depth_ft: 8, freeboard_ft: 1, fill: 0.78, access_points: 4, notes: 'Pump-out ports along the east wall.', profile: { dm: 5.4, n: 51, nh4: 0.72, p: 33, k: 33, s: 4.0, ph: 7.7, cv: 0.14 }, bounds: { n: [33, 78], p: [18, 53], k: [24, 47] } },
+  { farm: 'FCD', storage: 'BASIN', name: 'Main earthen basin', kind: 'earthen_basin', species: 'dairy', form: 'liquid', shape: 'basin', length_ft: 320, width_ft: 240, depth_ft: 14, side_slope: 3, freeboard_ft: 2, fill: 0.64, access_points: 3, notes: 'Agitation and pump-out from the ramp (A) and two bank stations (B, C).', profile: { dm: 6.8, n: 26, nh4: 0.46, p: 12.5, k: 24, s: 2.6, ph: 7.3, cv: 0.16 } },
   { farm: 'FCD', storage: 'RECV', name: 'Reception pit', kind: 'tank', species: 'dairy', form: 'liquid', shape: 'rectangular', length_ft: 20, width_ft: 12, depth_ft: 10, freeboard_ft: 1, fill: 0.6, access_points: 2, notes: 'Concrete pit at the barn; mostly transferred to the basin.', profile: { dm: 9.5, n: 31, nh4: 0.42, p: 15.5, k: 27, s: 3.1, ph: 7.1, cv: 0.12 } },
-  { farm: 'RSF', storage: 'SLAB', name: 'Stacking slab', kind: 'stack', species: 'beef', form: 'solid', capacity: 1800, capacity_unit: 'ton', current_amount: 1210, access_points: 4, notes: 'Concrete slab with push walls; pile faces A to D.', profile: { dm: 52, n: 22, nh4: 0.18, p: 15, k: 21, s: 4.5, ph: 8.1, cv: 0.2 } },
-  { farm: 'LKP', storage: 'SHED', name: 'Litter shed', kind: 'stack', species: 'poultry', form: 'solid', capacity: 650, capacity_unit: 'ton', current_amount: 415, access_points: 3, notes: 'Roofed stacking shed; litter from four broiler houses.', profile: { dm: 74, n: 60, nh4: 0.17, p: 58, k: 50, s: 12, ph: 8.2, cv: 0.17 }, bounds: { n: [32, 92], p: [32, 92], k: [29, 83] } },
-  { farm: 'TMF', storage: 'TANK', name: 'Slurry tank', kind: 'tank', species: 'swine', form: 'liquid', shape: 'circular', diameter_ft: 90, depth_ft: 14, freeboard_ft: 1, fill: 0.72, access_points: 2, notes: 'Above-ground steel tank, open top; takes rain.', profile: { dm: 3.6, n: 38, nh4: 0.7, p: 22, k: 29, s: 3.0, ph: 7.6, cv: 0.14 }, bounds: { n: [33, 78], p: [18, 53], k: [24, 47] } },
-  { farm: 'TMF', storage: 'PACK', name: 'Bedded pack barn', kind: 'other', species: 'beef', form: 'solid', capacity: 400, capacity_unit: 'ton', current_amount: 260, access_points: 3, notes: 'Straw-bedded pack, cleaned out spring and fall.', profile: { dm: 31, n: 14, nh4: 0.16, p: 9.5, k: 15, s: 2.8, ph: 8.0, cv: 0.22 } },
-  { farm: 'WBD', storage: 'LAGOON', name: 'Lagoon', kind: 'lagoon', species: 'dairy', form: 'liquid', shape: 'basin', length_ft: 260, width_ft: 200, depth_ft: 16, side_slope: 2.5, freeboard_ft: 2, fill: 0.75, access_points: 3, notes: 'Irrigation intake (A), agitation ramp (B), south bank (C).', profile: { dm: 1.9, n: 13, nh4: 0.55, p: 5.2, k: 16, s: 1.1, ph: 7.8, cv: 0.13 } },
+  { farm: 'RSF', storage: 'SLAB', name: 'Stacking slab', kind: 'stack', species: 'beef', form: 'solid', capacity: 4000, capacity_unit: 'ton', current_amount: 3100, access_points: 4, notes: 'Concrete slab with push walls; pile faces A to D.', profile: { dm: 52, n: 22, nh4: 0.18, p: 15, k: 21, s: 4.5, ph: 8.1, cv: 0.2 } },
+  { farm: 'LKP', storage: 'SHED', name: 'Litter shed', kind: 'stack', species: 'poultry', form: 'solid', capacity: 1000, capacity_unit: 'ton', current_amount: 780, access_points: 3, notes: 'Roofed stacking shed; litter from four broiler houses.', profile: { dm: 74, n: 60, nh4: 0.17, p: 58, k: 50, s: 12, ph: 8.2, cv: 0.17 }, bounds: { n: [32, 92], p: [32, 92], k: [29, 83] } },
+  { farm: 'TMF', storage: 'TANK', name: 'Slurry tank', kind: 'tank', species: 'swine', form: 'liquid', shape: 'circular', diameter_ft: 120, depth_ft: 16, freeboard_ft: 1, fill: 0.78, access_points: 2, notes: 'Above-ground steel tank, open top; takes rain.', profile: { dm: 3.6, n: 38, nh4: 0.7, p: 22, k: 29, s: 3.0, ph: 7.6, cv: 0.14 }, bounds: { n: [33, 78], p: [18, 53], k: [24, 47] } },
+  { farm: 'TMF', storage: 'PACK', name: 'Bedded pack barn', kind: 'other', species: 'beef', form: 'solid', capacity: 900, capacity_unit: 'ton', current_amount: 640, access_points: 3, notes: 'Straw-bedded pack, cleaned out spring and fall.', profile: { dm: 31, n: 14, nh4: 0.16, p: 9.5, k: 15, s: 2.8, ph: 8.0, cv: 0.22 } },
+  { farm: 'WBD', storage: 'LAGOON', name: 'Lagoon', kind: 'lagoon', species: 'dairy', form: 'liquid', shape: 'basin', length_ft: 400, width_ft: 300, depth_ft: 16, side_slope: 2.5, freeboard_ft: 2, fill: 0.78, access_points: 3, notes: 'Irrigation intake (A), agitation ramp (B), south bank (C).', profile: { dm: 1.9, n: 13, nh4: 0.55, p: 5.2, k: 16, s: 1.1, ph: 7.8, cv: 0.13 } },
 ]
 const amountOn = '2026-11-01'
 for (const s of storages) {
@@ -190,13 +190,21 @@ function previousCrop(rotation, y) {
   return previousOf(before)
 }
 
-const soilMethod = { QBF: 'mehlich3', FCD: 'bray1', RSF: 'mehlich3', LKP: 'mehlich3', TMF: 'mehlich3', WBD: 'bray1' }
 const soilP = { QBF: [18, 70], FCD: [22, 125], RSF: [14, 55], LKP: [30, 95], TMF: [12, 60], WBD: [25, 110] }
-const overrides = {
-  'FCD/F04': { basis: 'p2o5', notes: 'Drains to Ferncastle Creek: keep to a P-based rate.' },
-  'QBF/F07': { max_rate: 5000, notes: 'Sandy knoll; well 200 ft from the north edge (setback marked).' },
-  'WBD/F03': { n_need: 90, notes: 'N need set by the advisor after a stalk nitrate test.' },
-  'LKP/F02': { ammonium_retention: 0.9, notes: 'Litter worked in the same day.' },
+
+// Manure covers only part of a farm: fields draw from a storage (in field order) while the rough
+// per-acre rate below times their acres stays within 92 % of what is in storage; the others get
+// commercial fertilizer only (no storage in the fields file). Rates per acre are rough figures
+// for balancing the invented scenario (gal or ton per acre), not agronomic advice.
+const roughRate = { P1: 5000, P2: 6500, BASIN: 5000, SLAB: 23, SHED: 10, TANK: 6300, PACK: 20, LAGOON: 7000 }
+const roughRateHay = { BASIN: 12000, LAGOON: 9000 }
+const noManureIn2027 = new Set(['soybean', 'alfalfa'])
+// per-field overrides, on the first field of a farm that draws manure and fits `when`
+const overrideRules = {
+  QBF: { when: (f, n) => n === 1, values: { max_rate: 5000 }, notes: 'Sandy knoll; well 200 ft from the north edge (setback marked).' },
+  FCD: { when: (f) => f.rotation[3] === 'corn_silage', values: { basis: 'p2o5' }, notes: 'Drains to Ferncastle Creek: keep to a P-based rate.' },
+  WBD: { when: (f) => f.rotation[3] === 'corn_silage', values: { n_need: 90 }, notes: 'N need set by the advisor after a stalk nitrate test.' },
+  LKP: { when: () => true, values: { ammonium_retention: 0.9 }, notes: 'Litter worked in the same day.' },
 }
 
 const fieldRows = []
@@ -208,39 +216,72 @@ for (const f of farms) {
     const j = Math.floor(random() * (i + 1))
     ;[names[i], names[j]] = [names[j], names[i]]
   }
-  fieldsByFarm[f.farm] = []
-  defs.forEach((d, i) => {
-    const code = `F${String(i + 1).padStart(2, '0')}`
-    const key = `${f.farm}/${code}`
-    const acres = round(between(14, 118), 1)
+  const used = new Map()
+  const fields = defs.map((d, i) => {
     const [pl, ph] = soilP[f.farm]
-    const soil = {
-      soil_test_p_ppm: Math.round(between(pl, ph)),
-      soil_test_p_method: soilMethod[f.farm],
-      soil_test_k_ppm: Math.round(between(105, 240)),
-      soil_test_date: `2025-10-${String(2 + Math.floor(random() * 20)).padStart(2, '0')}`,
-      soil_test_om_pct: round(between(2.2, 4.6), 1),
-      soil_test_ph: round(between(6.0, 7.3), 1),
+    // the reception pit is normally transferred to the basin: fields draw from the basin
+    const source = d.storage === 'RECV' ? 'BASIN' : d.storage
+    const field = {
+      farm: f.farm,
+      code: `F${String(i + 1).padStart(2, '0')}`,
+      name: names[i % names.length],
+      acres: round(between(14, 118), 1),
+      rotation: d.rotation,
+      source,
+      storage: null,
+      method: d.method,
+      hours: d.hours ?? null,
+      capacity: d.capacity ?? null,
+      overrides: {},
+      notes: '',
+      soil: {
+        soil_test_p_ppm: Math.round(between(pl, ph)),
+        soil_test_p_method: 'mehlich3',
+        soil_test_k_ppm: Math.round(between(105, 240)),
+        soil_test_date: `2025-10-${String(2 + Math.floor(random() * 20)).padStart(2, '0')}`,
+        soil_test_om_pct: round(between(2.2, 4.6), 1),
+        soil_test_ph: round(between(6.0, 7.3), 1),
+      },
     }
-    const o = overrides[key] ?? {}
-    const field = { farm: f.farm, code, name: names[i % names.length], acres, rotation: d.rotation, storage: d.storage, method: d.method, hours: d.hours ?? null, capacity: d.capacity ?? null }
-    fieldsByFarm[f.farm].push(field)
+    if (source && !noManureIn2027.has(d.rotation[3])) {
+      const s = storages.find((x) => x.farm === f.farm && x.storage === source)
+      const perAcre = d.rotation[3] === 'grass_hay' ? (roughRateHay[source] ?? roughRate[source]) : roughRate[source]
+      const need = perAcre * field.acres
+      if ((used.get(source) ?? 0) + need <= 0.92 * s.current_amount) {
+        used.set(source, (used.get(source) ?? 0) + need)
+        field.storage = source
+      }
+    }
+    return field
+  })
+  const rule = overrideRules[f.farm]
+  if (rule) {
+    const manured = fields.filter((x) => x.storage)
+    const target = manured.find((x, n) => rule.when(x, n))
+    if (target) {
+      target.overrides = rule.values
+      target.notes = rule.notes
+    }
+  }
+  fieldsByFarm[f.farm] = fields
+  fields.forEach((field, i) => {
+    const o = field.overrides
     seasons.forEach((season) => {
       const y = season - 2024
-      const crop = d.rotation[y]
+      const crop = field.rotation[y]
       const [lo, hi, digits] = yieldGoal[crop]
       fieldRows.push({
         farm: f.farm,
-        field: code,
-        acres,
+        field: field.code,
+        acres: field.acres,
         season,
         crop,
         yield_goal: round(lo + ((hi - lo) * ((i * 7 + 3) % 10)) / 10, digits),
-        previous_crop: previousCrop(d.rotation, y),
-        ...soil,
-        storage: d.storage ?? '',
-        method: d.method ?? '',
-        incorporated_within_hours: d.hours ?? '',
+        previous_crop: previousCrop(field.rotation, y),
+        ...field.soil,
+        storage: field.storage ?? '',
+        method: field.storage ? field.method : '',
+        incorporated_within_hours: field.storage ? (field.hours ?? '') : '',
         basis: o.basis ?? '',
         n_need: o.n_need ?? '',
         p2o5_need: '',
@@ -251,9 +292,9 @@ for (const f of farms) {
         p2o5_availability: '',
         k2o_availability: '',
         max_rate: o.max_rate ?? '',
-        applicator_capacity: d.storage ? (d.capacity ?? '') : '',
+        applicator_capacity: field.storage ? (field.capacity ?? '') : '',
         name: field.name,
-        notes: o.notes ?? '',
+        notes: field.notes,
       })
     })
   })
@@ -389,8 +430,7 @@ for (const f of farms) {
   fieldsByFarm[f.farm].forEach((field, i) => {
     for (const season of [2025, 2026]) {
       const crop = field.rotation[season - 2024]
-      // the reception pit is normally transferred to the basin: past spreading came from there
-      const storage = field.storage === 'RECV' ? 'BASIN' : (field.storage ?? (f.farm === 'RSF' ? 'SLAB' : f.farm === 'LKP' ? 'SHED' : null))
+      const storage = field.source ?? (f.farm === 'RSF' ? 'SLAB' : f.farm === 'LKP' ? 'SHED' : null)
       if (!storage || crop === 'soybean') continue
       const s = storages.find((x) => x.farm === f.farm && x.storage === storage)
       const liquid = s.form === 'liquid'

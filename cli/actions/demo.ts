@@ -12,6 +12,7 @@ import { importApplications } from './applications.ts'
 import { importFarms } from './farms.ts'
 import { importFields } from './fields.ts'
 import { importLabFiles } from './labs-import.ts'
+import { runPlans } from './plan.ts'
 import type { ImportDeps, ImportReport } from './record-import.ts'
 import { importSamples } from './samples.ts'
 import { importStorages } from './storages.ts'
@@ -44,8 +45,6 @@ export interface DemoStep {
   new: number
   changed: number
   unchanged: number
-  /** 'done', or 'not available' when the command this step needs is not part of this build. */
-  status: 'done' | 'not available'
 }
 
 export interface DemoReport {
@@ -83,17 +82,7 @@ export function demoAccounts(farmsCsv: string): DemoAccount[] {
 
 function stepOf(step: string, detail: string, r: ImportReport): DemoStep {
   const sum = (k: 'new' | 'changed' | 'unchanged') => r.files.reduce((n, f) => n + f[k], 0)
-  return { step, detail, new: sum('new'), changed: sum('changed'), unchanged: sum('unchanged'), status: 'done' }
-}
-
-/** Loads a module of this build that may not exist yet; null when it does not. */
-async function loadOptional<T>(specifier: string): Promise<T | null> {
-  try {
-    return (await import(specifier)) as T
-  } catch (error) {
-    if ((error as NodeJS.ErrnoException).code === 'ERR_MODULE_NOT_FOUND') return null
-    throw error
-  }
+  return { step, detail, new: sum('new'), changed: sum('changed'), unchanged: sum('unchanged') }
 }
 
 /**
@@ -111,12 +100,12 @@ export async function loadDemo(deps: ImportDeps, options: { demoDir?: string } =
   const org = demoScenario.organization
   const existed = await findOrganizationByCode(deps.db, org.code)
   await resolveOrganization(deps.db, { code: org.code, createName: org.name })
-  steps.push({ step: 'organization', detail: `${org.code} (${org.name})`, new: existed ? 0 : 1, changed: 0, unchanged: existed ? 1 : 0, status: 'done' })
+  steps.push({ step: 'organization', detail: `${org.code} (${org.name})`, new: existed ? 0 : 1, changed: 0, unchanged: existed ? 1 : 0 })
 
   steps.push(stepOf('farms', 'farms.csv', await importFarms(deps, [file('farms.csv')], { org: org.code, today })))
 
   const accounts = demoAccounts(readFileSync(file('farms.csv'), 'utf8'))
-  const accountStep: DemoStep = { step: 'accounts', detail: `${accounts.length} sign-ins`, new: 0, changed: 0, unchanged: 0, status: 'done' }
+  const accountStep: DemoStep = { step: 'accounts', detail: `${accounts.length} sign-ins`, new: 0, changed: 0, unchanged: 0 }
   const missing: DemoAccount[] = []
   for (const a of accounts) {
     if (await findUserByEmail(deps.db, a.email)) accountStep.unchanged++
@@ -151,7 +140,6 @@ export async function loadDemo(deps: ImportDeps, options: { demoDir?: string } =
     new: summary.totals.new,
     changed: summary.totals.replaced,
     unchanged: summary.totals.unchanged,
-    status: 'done',
   })
 
   const applications = readdirSync(dir).filter((f) => /^applications-.*\.csv$/.test(f)).sort()
@@ -179,9 +167,6 @@ export async function loadDemo(deps: ImportDeps, options: { demoDir?: string } =
 async function planStep(deps: ImportDeps, dataChanged: boolean): Promise<DemoStep> {
   const { season, asOf, organization } = demoScenario
   const detail = `season ${season} as of ${asOf}`
-  const plan = await loadOptional<Record<string, unknown>>('./plan' + '.js')
-  const runPlans = plan?.runPlans as ((deps: ImportDeps, options: Record<string, unknown>) => Promise<unknown>) | undefined
-  if (!runPlans) return { step: 'plans', detail: `${detail}: \`pitside plan\` is not part of this build`, new: 0, changed: 0, unchanged: 0, status: 'not available' }
   const farms = await deps.db
     .selectFrom('farms')
     .innerJoin('organizations', 'organizations.id', 'farms.organization_id')
@@ -193,9 +178,9 @@ async function planStep(deps: ImportDeps, dataChanged: boolean): Promise<DemoSte
     .orderBy('farms.code')
     .execute()
   const unplanned = farms.filter((f) => Number(f.plans ?? 0) === 0)
-  if (!dataChanged && unplanned.length === 0) return { step: 'plans', detail, new: 0, changed: 0, unchanged: farms.length, status: 'done' }
-  await runPlans(deps, { all: true, season, asOf, createdBy: 'pitside demo' })
-  return { step: 'plans', detail, new: farms.length, changed: 0, unchanged: 0, status: 'done' }
+  if (!dataChanged && unplanned.length === 0) return { step: 'plans', detail, new: 0, changed: 0, unchanged: farms.length }
+  const { plans } = await runPlans(deps, { all: true, organization: organization.code, season, asOf, createdBy: 'pitside demo' })
+  return { step: 'plans', detail, new: plans.length, changed: 0, unchanged: 0 }
 }
 
 export function demoJson(r: DemoReport, database: string) {
@@ -224,9 +209,9 @@ export const run: ActionModule['run'] = async ({ globals: g }) => {
   if (g.json) return printJson(demoJson(report, g.db))
   printTable(report.steps, [
     { header: 'step', value: (s) => s.step },
-    { header: 'new', value: (s) => (s.status === 'done' ? s.new : ''), align: 'right' },
-    { header: 'changed', value: (s) => (s.status === 'done' ? s.changed : ''), align: 'right' },
-    { header: 'unchanged', value: (s) => (s.status === 'done' ? s.unchanged : ''), align: 'right' },
+    { header: 'new', value: (s) => s.new, align: 'right' },
+    { header: 'changed', value: (s) => s.changed, align: 'right' },
+    { header: 'unchanged', value: (s) => s.unchanged, align: 'right' },
     { header: 'from', value: (s) => s.detail },
   ])
   printTable(report.accounts, [
@@ -236,7 +221,6 @@ export const run: ActionModule['run'] = async ({ globals: g }) => {
     { header: 'sees', value: (a) => (a.role === 'advisor' ? 'every farm' : a.farmCodes.join(', ')) },
   ])
   process.stdout.write(`password for every demo account: ${report.password} (demo only)\n`)
-  for (const s of report.steps.filter((x) => x.status === 'not available')) note(g, `skipped ${s.step}: ${s.detail}`)
   note(
     g,
     report.changed

@@ -12,7 +12,7 @@ import { makeTempDir, type TempDir } from '../helpers/temp-db.ts'
 
 let tmp: TempDir
 let db: string
-let first: { changed: boolean; steps: { step: string; new: number; changed: number; unchanged: number; status: string }[]; accounts: { email: string; role: string; farms: string[] }[]; password: string }
+let first: { changed: boolean; steps: { step: string; new: number; changed: number; unchanged: number }[]; accounts: { email: string; role: string; farms: string[] }[]; password: string }
 let second: typeof first
 let before: string
 let after: string
@@ -54,7 +54,8 @@ describe('pitside demo', () => {
     expect(by.fields).toMatchObject({ new: 180 }) // 60 fields × seasons 2025–2027
     expect(by.samples).toMatchObject({ new: 168 })
     expect(by.applications).toMatchObject({ new: 89 })
-    expect(by['lab results']).toMatchObject({ status: 'done', new: 168 })
+    expect(by['lab results']).toMatchObject({ new: 168 })
+    expect(by.plans).toMatchObject({ new: 6 }) // one plan per farm for 2027
   })
 
   it('links every lab result to its sampling event and keeps the below-detection qualifier', () => {
@@ -86,6 +87,7 @@ describe('pitside demo', () => {
   it('changes nothing on a second run, and says so', () => {
     expect(second.changed).toBe(false)
     for (const s of second.steps) expect(s.new + s.changed, s.step).toBe(0)
+    expect(second.steps.find((s) => s.step === 'plans')).toMatchObject({ unchanged: 6 })
     expect(after).toBe(before)
   })
 })
@@ -95,7 +97,8 @@ describe("the demo's example files", () => {
 
   it('give storage capacities that match their geometry below the freeboard', () => {
     // prismoidal formula for basins, L × W × H and π D²/4 × H, 7.4805 gal/ft³ (Univ. Missouri 2003;
-    // Univ. Maryland Facts 176), through shared/storage.ts; the file rounds to 100 gal
+    // Univ. Maryland Facts 176), through shared/storage.ts; the file rounds to 100 gal and the script
+    // uses 7.4805 gal/ft³ (231 in³ per gal gives 7.48052)
     const { rows } = parseStorageCsv(readFileSync(join(dir, 'storages.csv'), 'utf8'))
     const liquid = rows.filter((s) => s.form === 'liquid')
     expect(liquid.length).toBe(6)
@@ -107,8 +110,8 @@ describe("the demo's example files", () => {
             ? { shape: 'circular', diameter: s.diameterFt!, depth: s.depthFt! }
             : { shape: 'basin', topLength: s.lengthFt!, topWidth: s.widthFt!, depth: s.depthFt!, sideSlope: s.sideSlope! }
       const v = computeStorageVolume({ geometry, units: 'us', freeboard: s.freeboardFt!, manureDepth: s.currentDepthFt! })
-      expect(Math.abs(v.usable.gal - s.capacity!), s.code).toBeLessThanOrEqual(50)
-      expect(Math.abs(v.contents!.gal - s.currentAmount!), s.code).toBeLessThanOrEqual(50)
+      expect(Math.abs(v.usable.gal - s.capacity!), s.code).toBeLessThanOrEqual(50 + v.usable.gal * 1e-5)
+      expect(Math.abs(v.contents!.gal - s.currentAmount!), s.code).toBeLessThanOrEqual(50 + v.contents!.gal * 1e-5)
     }
   })
 
