@@ -11,6 +11,7 @@ import {
   labResultSignature,
 } from '../../shared/db/labs.ts'
 import type { Database } from '../../shared/db/schema.ts'
+import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
 import { decodeText } from '../../shared/decode-text.ts'
 import { AppError, formatProblems, isAppError, type ErrorCode, type Problem } from '../../shared/errors.ts'
 import { readLabCsv, type LabRow } from '../../shared/lab-csv.ts'
@@ -183,43 +184,51 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   let read: ReturnType<typeof readLabCsv> | undefined
   let added = 0
   let replaced = 0
-  summary.importRunId = writeLabFile(sqlite, { fileName: name, sha256: input.sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null }, (writer) => {
-    read = readLabCsv(decoded.text, { file: name, profile: options.profile ?? null, ...(options.today ? { today: options.today } : {}) }, (row) => {
-      if (!checkLabRow(row, context, checkProblems, values)) return
-      if (checkProblems.length > 0) return // refused anyway: go on checking, stop writing
-      const existing = stored(row.reportId).get(row.sampleId)
-      let supersedes: number | null = null
-      if (existing) {
-        if (existing.signature === signatureOf(row, values)) {
-          unchanged++
-          return
+  try {
+    summary.importRunId = writeLabFile(sqlite, { fileName: name, sha256: input.sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null }, (writer) => {
+      read = readLabCsv(decoded.text, { file: name, profile: options.profile ?? null, ...(options.today ? { today: options.today } : {}) }, (row) => {
+        if (!checkLabRow(row, context, checkProblems, values)) return
+        if (checkProblems.length > 0) return // refused anyway: go on checking, stop writing
+        const existing = stored(row.reportId).get(row.sampleId)
+        let supersedes: number | null = null
+        if (existing) {
+          if (existing.signature === signatureOf(row, values)) {
+            unchanged++
+            return
+          }
+          if (!options.replace) {
+            unchanged++
+            rowWarnings.push({
+              code: 'stored_differs',
+              severity: 'warning',
+              line: row.line,
+              column: 'sample_id',
+              message: `report ${row.reportId} sample ${row.sampleId} is already stored with other values; kept the stored result (use --replace to supersede it)`,
+            })
+            return
+          }
+          supersedes = existing.id
         }
-        if (!options.replace) {
-          unchanged++
-          rowWarnings.push({
-            code: 'stored_differs',
-            severity: 'warning',
-            line: row.line,
-            column: 'sample_id',
-            message: `report ${row.reportId} sample ${row.sampleId} is already stored with other values; kept the stored result (use --replace to supersede it)`,
-          })
-          return
+        if (values.warnings) {
+          for (const w of values.warnings) {
+            const colon = w.indexOf(': ')
+            rowWarnings.push({ code: 'plausibility', severity: 'warning', line: row.line, column: w.slice(0, colon), message: w.slice(colon + 2) })
+          }
         }
-        supersedes = existing.id
-      }
-      if (values.warnings) {
-        for (const w of values.warnings) {
-          const colon = w.indexOf(': ')
-          rowWarnings.push({ code: 'plausibility', severity: 'warning', line: row.line, column: w.slice(0, colon), message: w.slice(colon + 2) })
+        try {
+          writer.add(row, values, supersedes)
+        } catch (error) {
+          throw writeFailure(error, `${name}:${row.line}`)
         }
-      }
-      writer.add(row, values, supersedes)
+      })
+      added = writer.count
+      replaced = writer.replaced
+      if (checkProblems.length > 0 || read.problems.some((p) => p.severity !== 'warning')) return null
+      return { rows: read.rows, unchanged, warnings: read.problems.length + rowWarnings.length }
     })
-    added = writer.count
-    replaced = writer.replaced
-    if (checkProblems.length > 0 || read.problems.some((p) => p.severity !== 'warning')) return null
-    return { rows: read.rows, unchanged, warnings: read.problems.length + rowWarnings.length }
-  })
+  } catch (error) {
+    throw writeFailure(error, name)
+  }
   const r = read!
   const errors = [...r.problems.filter((p) => p.severity !== 'warning'), ...checkProblems].sort((a, b) => (a.line ?? 0) - (b.line ?? 0))
   summary.rows = r.rows + countRowsWithErrors(r.problems)
@@ -237,6 +246,18 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   }
   summary.outcome = replaced > 0 ? 'replaced' : 'imported'
   return summary
+}
+
+/**
+ * A write that failed (disk full, I/O error, …) as the user reads it: where (file, and line when a
+ * row's insert failed) and why; the file's transaction has been rolled back. Causes SQLite reports
+ * for the outside world become AppErrors (io, database); anything else stays a bug, with its place.
+ */
+function writeFailure(error: unknown, where: string): unknown {
+  if (isAppError(error)) return error
+  const mapped = appErrorFromSqlite(error, `${where}: cannot store the results`)
+  if (mapped) return mapped
+  return new Error(`${where}: ${(error as Error)?.message ?? String(error)}; nothing from this file was written`, { cause: error })
 }
 
 function signatureOf(row: LabRow, v: LabResultValues): string {

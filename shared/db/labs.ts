@@ -273,7 +273,8 @@ export function writeLabFile(sqlite: SQLite.Database, meta: LabFileMeta, fill: (
     open = false
     return runId
   } finally {
-    if (open) sqlite.exec('rollback')
+    // SQLite may already have rolled back (a full disk at commit); rolling back again would hide why
+    if (open && sqlite.inTransaction) sqlite.exec('rollback')
     if (foreignKeys) sqlite.pragma('foreign_keys = ON')
   }
 }
