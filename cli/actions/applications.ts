@@ -87,6 +87,6 @@ export const runList: ActionModule['run'] = async ({ options, globals: g }) => {
     { header: 'planned total', value: (f) => (f.plannedTotal === null ? '' : `${fmt(f.plannedTotal)} ${f.amountUnit ?? ''}`), align: 'right' },
     { header: 'actual total', value: (f) => `${fmt(f.actualTotal)} ${f.amountUnit ?? ''}`, align: 'right' },
     { header: 'difference', value: (f) => (f.differencePct === null ? '' : `${f.differencePct >= 0 ? '+' : ''}${f.differencePct.toFixed(0)} %`), align: 'right' },
-    { header: 'spread on', value: (f) => f.dates.join(' ') },
+    { header: 'spread on', value: (f) => (f.dates.length ? f.dates.join(' ') : 'not yet') },
   ])
 }

@@ -188,7 +188,7 @@ export interface PlannedVsActual {
   amountUnit: AmountUnit | null
   applications: number
   dates: string[]
-  /** (actual − planned) / planned × 100, when both are in one unit. */
+  /** (actual − planned) / planned × 100, when both are in one unit and something was spread. */
   differencePct: number | null
 }
 
@@ -253,7 +253,8 @@ export async function findPlannedVsActual(db: Kysely<Database>, farmId: number, 
       amountUnit: unit,
       applications: mine.length,
       dates: mine.map((a) => a.appliedOn),
-      differencePct: plannedTotal ? ((actualTotal - plannedTotal) / plannedTotal) * 100 : null,
+      // nothing spread yet is not a difference from the plan, only work still to do
+      differencePct: plannedTotal && mine.length ? ((actualTotal - plannedTotal) / plannedTotal) * 100 : null,
     })
   }
   return {
