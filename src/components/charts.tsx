@@ -4,7 +4,7 @@ import { fmt, label, num, nutrientColours, nutrients } from './format.ts'
 
 const narrowQuery = '(max-width: 640px)'
 /** True on a phone-sized screen, so charts draw with fewer, larger units instead of shrinking. */
-function useNarrow(): boolean {
+export function useNarrow(): boolean {
   return useSyncExternalStore(
     (onChange) => {
       const m = window.matchMedia(narrowQuery)

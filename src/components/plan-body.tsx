@@ -1,7 +1,7 @@
 import type { ReactNode } from 'react'
 import type { PlanField, PlanStorage, PlanView } from '../../shared/api-types.ts'
 import { Cautions } from './cautions.tsx'
-import { BudgetBar, SupplyChart } from './charts.tsx'
+import { BudgetBar, SupplyChart, useNarrow } from './charts.tsx'
 import { amountUnit, date, dateTime, fmt, label, loadsOf, num, nutrients, rateDigits, warningText } from './format.ts'
 
 interface StorageGroup {
@@ -73,7 +73,7 @@ function SuppliedNeed({ f, k }: { f: PlanField; k: (typeof nutrients)[number] })
 function FieldCards({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
   const rd = rateDigits(g.rateUnit)
   return (
-    <ul className="space-y-2 sm:hidden">
+    <ul className="space-y-2">
       {g.fields.map((f) => (
         <li key={f.field} className="rounded-md border border-line bg-surface p-3">
           <div className="flex items-baseline justify-between gap-2">
@@ -114,7 +114,7 @@ function FieldCards({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string
 function FieldTable({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
   const rd = rateDigits(g.rateUnit)
   return (
-    <div className="hidden overflow-x-auto rounded-md border border-line bg-surface sm:block" tabIndex={0} role="region" aria-label={`Field rates from ${g.code}`}>
+    <div className="overflow-x-auto rounded-md border border-line bg-surface" tabIndex={0} role="region" aria-label={`Field rates from ${g.code}`}>
       <table className="data min-w-[56rem]">
         <caption className="sr-only">Fields drawing from {storageTitle(g)}: rate, method and nutrients</caption>
         <thead>
@@ -415,6 +415,7 @@ function PrintSheet({ plan, groups, fieldNames }: { plan: PlanView; groups: Stor
 
 /** Everything a plan shows, for the plan page and the shared-plan page. */
 export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: ReactNode; versions?: ReactNode }) {
+  const narrow = useNarrow()
   const groups = groupByStorage(plan)
   const fields = plan.result.fields ?? []
   const fieldNames = new Map(plan.fields.map((f) => [f.code, f.name]))
@@ -452,8 +453,7 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
           {groups.map((g) => (
             <div key={g.code}>
               <h3 className="mb-2 font-semibold">From {storageTitle(g)}</h3>
-              <FieldCards g={g} fieldNames={fieldNames} />
-              <FieldTable g={g} fieldNames={fieldNames} />
+              {narrow ? <FieldCards g={g} fieldNames={fieldNames} /> : <FieldTable g={g} fieldNames={fieldNames} />}
             </div>
           ))}
         </div>
