@@ -158,6 +158,19 @@ export const run: ActionModule['run'] = async ({ options, globals: g }) => {
   else if (options.csv) process.stdout.write(plansCsv(result.plans))
   else if (result.plans.length <= 3) {
     process.stdout.write(result.plans.map(formatPlan).join('\n\n') + '\n\n' + cautions.join('\n') + '\n')
+  } else if (result.plans.length > 100) {
+    const t = { fields: 0, acres: 0, skipped: 0 }
+    for (const p of result.plans) {
+      t.fields += p.totals.fields
+      t.acres += p.totals.acres
+      t.skipped += p.totals.skipped
+    }
+    process.stdout.write(
+      `${result.plans.length} plans (plan ${result.plans[0]!.id} to ${result.plans[result.plans.length - 1]!.id}): ${t.fields} fields, ${fmt(t.acres)} acres` +
+        `${t.skipped ? `, ${t.skipped} fields skipped` : ''}; \`pitside plans list --latest --season ${season}\` lists them, --csv gives every field\n` +
+        cautions.join('\n') +
+        '\n',
+    )
   } else {
     process.stdout.write(
       formatTable(result.plans, [

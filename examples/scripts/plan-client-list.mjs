@@ -152,6 +152,7 @@ mkdirSync(out, { recursive: true })
 const createdAt = new Date().toISOString()
 for (const [code, snapshot] of [...snapshots].sort(([a], [b]) => a.localeCompare(b))) {
   snapshot.fields.sort((a, b) => a.code.localeCompare(b.code))
+  snapshot.storages.sort((a, b) => a.code.localeCompare(b.code))
   const { plan, inputs } = computePlan(snapshot, { season, asOf, referenceSet, ...(values.basis ? { basis: values.basis } : {}) })
   const file = join(out, `${code}.json`)
   writeFileSync(file, JSON.stringify({ plan: planJson(plan, { version: 1, createdAt }), inputs }, null, 2) + '\n')

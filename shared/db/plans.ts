@@ -242,11 +242,15 @@ export function planWriter(sqlite: SQLite.Database) {
   const write = sqlite.transaction((p: NewPlan): PlanJson => {
     const version = nextVersion.get(p.farm.farmId, p.body.season) as number
     const stored = planJson(p.body, { version, createdAt: p.createdAt })
+    // each field is serialized once: for its plan_fields row and, spliced in, for plans.result
+    const details = p.body.fields.map((f) => JSON.stringify(f))
+    const { skipped, totals, warnings, fields: _fields, ...head } = stored
+    const result = `${JSON.stringify(head).slice(0, -1)},"fields":[${details.join(',')}],${JSON.stringify({ skipped, totals, warnings }).slice(1)}`
     const id = Number(
-      insertPlan.run(p.farm.farmId, p.body.season, version, p.body.reference_set, p.body.reference_set_version, p.body.basis, p.body.as_of, JSON.stringify(p.inputs), JSON.stringify(stored), p.createdBy, p.createdAt)
+      insertPlan.run(p.farm.farmId, p.body.season, version, p.body.reference_set, p.body.reference_set_version, p.body.basis, p.body.as_of, JSON.stringify(p.inputs), result, p.createdBy, p.createdAt)
         .lastInsertRowid,
     )
-    for (const f of p.body.fields) {
+    p.body.fields.forEach((f, i) => {
       insertField.run(
         id,
         p.farm.fieldIds.get(f.field)!,
@@ -272,10 +276,10 @@ export function planWriter(sqlite: SQLite.Database) {
         f.supplemental.k2o,
         f.total_manure,
         f.loads?.field ?? null,
-        JSON.stringify(f),
+        details[i],
         f.warnings.length > 0 ? JSON.stringify(f.warnings) : null,
       )
-    }
+    })
     return { id, ...stored }
   })
   return { write: (p: NewPlan) => write.immediate(p) }

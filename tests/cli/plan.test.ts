@@ -1,5 +1,7 @@
 import Database from 'better-sqlite3'
-import { copyFileSync } from 'node:fs'
+import { copyFileSync, readdirSync, readFileSync } from 'node:fs'
+import { execa } from 'execa'
+import { fileURLToPath } from 'node:url'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { parseCsv } from '../../shared/csv.ts'
 import { runCli } from '../helpers/cli.ts'
@@ -202,5 +204,22 @@ describe('pitside plan', () => {
     const table = await runCli(['--db', db, 'plan', '--farm', 'QBF', '--season', '2027', '--as-of', '2026-11-15'])
     expect(table.stdout).toMatch(/QBF season 2027, version \d+/)
     expect(table.stdout).toMatch(/Never enter a manure storage/)
+  })
+
+  it('plans the demo client list through the Node API example as `pitside plan` does through the database', async () => {
+    const db = copyOfDemo()
+    const { plans } = await planJson(db, ['--all'])
+    const out = tmp.path('client-list')
+    const script = fileURLToPath(new URL('../../examples/scripts/plan-client-list.mjs', import.meta.url))
+    const demoDir = fileURLToPath(new URL('../../examples/demo', import.meta.url))
+    const r = await execa('node', [script, demoDir, '--season', '2027', '--as-of', '2026-11-15', '--out', out], { reject: false })
+    expect(r.exitCode, String(r.stderr)).toBe(0)
+    expect(readdirSync(out).sort()).toEqual(plans.map((p) => `${p.farm}.json`).sort())
+    for (const p of plans) {
+      const fromScript = JSON.parse(readFileSync(`${out}/${p.farm}.json`, 'utf8')).plan
+      const numbers = (plan: any) => plan.fields.map((f: any) => [f.field, f.rate, f.limited_by, f.need, f.supplemental, f.total_manure, f.credits.manure_n])
+      expect(numbers(fromScript)).toEqual(numbers(p))
+      expect(fromScript.storages.map((s: any) => s.analysis)).toEqual(p.storages.map((s: any) => s.analysis))
+    }
   })
 })
