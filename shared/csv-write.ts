@@ -12,8 +12,9 @@ export interface CsvWriteOptions {
 }
 
 // = + - @ start a formula in common spreadsheets; tab and CR at the start are used to smuggle one in.
-// Leading spaces do not stop a spreadsheet from evaluating, so they are looked through.
-const formulaStart = /^[ \u00a0]*[=+\-@\t\r]/
+// Leading blanks do not stop a spreadsheet from evaluating, so they are looked through (any Unicode
+// white space, zero-width space and BOM included: which ones a given spreadsheet skips varies).
+const formulaStart = /^[\s\u200b\ufeff]*[=+\-@\t\r]/
 
 /**
  * One cell as CSV text. Numbers (finite JS numbers) are written as numbers and never prefixed, so
