@@ -49,8 +49,10 @@ export function webRoutes(webDir: string | null): Router {
   }
   const index = readFileSync(join(webDir, 'index.html'))
   const assets = loadAssets(join(webDir, 'assets'))
-  router.get('/assets/{*splat}', (req, res, next) => {
-    const asset = assets.get(req.path.slice('/assets/'.length))
+  // static files, like express.static: middleware rather than a route of the API
+  router.use('/assets', (req, res, next) => {
+    if (req.method !== 'GET' && req.method !== 'HEAD') return next()
+    const asset = assets.get(req.path.slice(1))
     if (!asset) return next()
     res.set('Cache-Control', 'public, max-age=31536000, immutable').set('Vary', 'Accept-Encoding').type(asset.type)
     if (asset.gzip && acceptsGzip(req.headers['accept-encoding'])) res.set('Content-Encoding', 'gzip').send(asset.gzip)
