@@ -1,5 +1,6 @@
 import { existsSync } from 'node:fs'
 import { openReader, openWriter, type OpenDatabase } from '../../shared/db/open-database.ts'
+import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
 import { AppError } from '../../shared/errors.ts'
 
 /**
@@ -20,11 +21,16 @@ export function openAdvisorDb(file: string, mode: 'write' | 'read' = 'write'): O
   return opened
 }
 
-/** Runs body with an open database and closes it afterwards, whatever happens. */
+/**
+ * Runs body with an open database and closes it afterwards, whatever happens. SQLite failures with
+ * an outside cause (locked, disk full, I/O, corrupt) become AppErrors with a message for the user.
+ */
 export async function withAdvisorDb<T>(file: string, mode: 'write' | 'read', body: (opened: OpenDatabase) => Promise<T> | T): Promise<T> {
   const opened = openAdvisorDb(file, mode)
   try {
     return await body(opened)
+  } catch (error) {
+    throw appErrorFromSqlite(error, `${mode === 'write' ? 'cannot write' : 'cannot read'} ${file}`) ?? error
   } finally {
     await opened.close()
   }

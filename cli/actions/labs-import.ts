@@ -129,7 +129,7 @@ interface BatchContext {
 }
 
 async function importOne(sqlite: SQLite.Database, path: string, batch: BatchContext, options: LabImportOptions): Promise<LabFileSummary> {
-  let input
+  let input: Awaited<ReturnType<typeof readInput>> | undefined
   try {
     input = await readInput(path)
   } catch (error) {
@@ -140,7 +140,8 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
     return s
   }
   const name = input.name
-  const summary = emptySummary(name, input.sha256)
+  const sha256 = input.sha256
+  const summary = emptySummary(name, sha256)
   const refuse = (problems: Problem[], reason: string) => {
     summary.outcome = 'refused'
     summary.problems = problems
@@ -154,16 +155,17 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
     return summary
   }
 
-  const previous = findLabImportBySha(sqlite, input.sha256)
+  const previous = findLabImportBySha(sqlite, sha256)
   if (previous) {
     summary.outcome = 'unchanged'
     summary.rows = previous.rows
     summary.unchanged = previous.rows
-    summary.reason = `the same file (sha256 ${input.sha256.slice(0, 12)}…) was imported as ${previous.fileName} on ${previous.createdAt} UTC`
+    summary.reason = `the same file (sha256 ${sha256.slice(0, 12)}…) was imported as ${previous.fileName} on ${previous.createdAt} UTC`
     return summary
   }
 
   const decoded = decodeText(input.bytes)
+  input = undefined // the bytes are not needed any more: let a big file's buffer go before the rows are read
   if (decoded.problem) return refuse([decoded.problem], 'not a UTF-8 text file')
 
   // One pass: each row is parsed, resolved, checked and sorted into new / unchanged / replacing,
@@ -185,7 +187,7 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   let added = 0
   let replaced = 0
   try {
-    summary.importRunId = writeLabFile(sqlite, { fileName: name, sha256: input.sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null }, (writer) => {
+    summary.importRunId = writeLabFile(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null }, (writer) => {
       read = readLabCsv(decoded.text, { file: name, profile: options.profile ?? null, ...(options.today ? { today: options.today } : {}) }, (row) => {
         if (!checkLabRow(row, context, checkProblems, values)) return
         if (checkProblems.length > 0) return // refused anyway: go on checking, stop writing
