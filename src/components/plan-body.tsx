@@ -1,4 +1,4 @@
-import type { ReactNode } from 'react'
+import { useState, type ReactNode } from 'react'
 import type { PlanField, PlanStorage, PlanView } from '../../shared/api-types.ts'
 import { Cautions } from './cautions.tsx'
 import { BudgetBar, SupplyChart, useNarrow } from './charts.tsx'
@@ -192,16 +192,27 @@ function sourceText(s: unknown): string {
   return JSON.stringify(s)
 }
 
+/**
+ * A closed <details> whose body is built only when it is first opened: a 200-field plan's factors
+ * and sources are some 10,000 elements that nobody sees until they open a field.
+ */
+function ClosedUntilOpened({ summary, children }: { summary: string; children: ReactNode }) {
+  const [opened, setOpened] = useState(false)
+  return (
+    <details className="rounded-md border border-line bg-surface p-3" onToggle={(e) => e.currentTarget.open && setOpened(true)}>
+      <summary className="cursor-pointer font-semibold">{summary}</summary>
+      {opened && children}
+    </details>
+  )
+}
+
 function Factors({ fields }: { fields: PlanField[] }) {
   const withFactors = fields.filter((f) => (f.factors && Object.keys(f.factors).length) || (f.sources && f.sources.length))
   if (withFactors.length === 0) return <p className="text-sm text-muted">This plan does not list the factors it used.</p>
   return (
     <div className="space-y-2">
       {withFactors.map((f) => (
-        <details key={f.field} className="rounded-md border border-line bg-surface p-3">
-          <summary className="cursor-pointer font-semibold">
-            {f.field} · {label(f.method)}
-          </summary>
+        <ClosedUntilOpened key={f.field} summary={`${f.field} · ${label(f.method)}`}>
           {f.factors && (
             <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
               {Object.entries(f.factors).map(([k, v]) => (
@@ -232,7 +243,7 @@ function Factors({ fields }: { fields: PlanField[] }) {
               </ul>
             </>
           )}
-        </details>
+        </ClosedUntilOpened>
       ))}
     </div>
   )
