@@ -14,7 +14,7 @@ describe('computeFarmBalance', () => {
     expect(b.stored).toBe(800000)
     expect(b.planned).toBe(650000)
     expect(b.surplus).toBe(150000)
-    expect(b.warnings).toContain('manure in storage has no planned field yet')
+    expect(b.warnings).toContain('more manure is in storage than the plans use: plan more fields or carry it over')
   })
   it('gives the area needed at the area-weighted planned rate against the area available', () => {
     const b = computeFarmBalance(input)

@@ -86,7 +86,7 @@ export function computeFarmBalance(input: FarmBalanceInput): FarmBalance {
   const areaNeeded = typicalRate && typicalRate > 0 ? stored / typicalRate : null
   const warnings: string[] = []
   if (plannedAmount > stored * 1.0001) warnings.push('the plans use more manure than is in storage')
-  if (stored > plannedAmount * 1.0001) warnings.push('manure in storage has no planned field yet')
+  if (stored > plannedAmount * 1.0001) warnings.push('more manure is in storage than the plans use: plan more fields or carry it over')
   if (areaNeeded !== null && areaNeeded > input.areaAvailable) warnings.push('not enough area is available for the stored manure at the typical rate')
   let value: FarmBalance['value'] = null
   if (input.availablePerUnit && input.prices) {
