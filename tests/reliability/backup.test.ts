@@ -3,9 +3,9 @@
 // (sqlite.org/backup.html: the copy is a snapshot of one committed state, taken while others write).
 import SQLite from 'better-sqlite3'
 import { execa } from 'execa'
-import { existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { copyFileSync, existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { dirname, join } from 'node:path'
-import { afterEach, beforeEach, describe, expect, it } from 'vitest'
+import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from 'vitest'
 import { binPath, runCli } from '../helpers/cli.ts'
 import { makeTempDir, type TempDir } from '../helpers/temp-db.ts'
 import { checkFile, dumpDatabase } from './helpers/dump.ts'
@@ -15,10 +15,16 @@ import { startWriter, stopWriter, writerState } from './helpers/writer-state.ts'
 
 let tmp: TempDir
 let db: string
-beforeEach(async () => {
+let template: TempDir
+beforeAll(async () => {
+  template = makeTempDir('pitside-backup-template-')
+  expect((await runCli(['--db', template.path('init.db'), 'init'])).exitCode).toBe(0)
+})
+afterAll(() => template?.cleanup())
+beforeEach(() => {
   tmp = makeTempDir('pitside-backup-')
   db = tmp.path('pitside.db')
-  expect((await runCli(['--db', db, 'init'])).exitCode).toBe(0)
+  copyFileSync(template.path('init.db'), db) // a database as `pitside init` made it
 })
 afterEach(() => tmp.cleanup())
 

@@ -15,7 +15,7 @@ import { makeFarmDatabase } from './helpers/lab-db.ts'
 import { writeLabFile } from './helpers/lab-files.ts'
 import { scaled, scaledTimeout } from './helpers/stress.ts'
 
-const rowsPerFile = 3000
+const rowsPerFile = 2000
 const runs = scaled(50)
 const lanes = 2
 

@@ -33,7 +33,13 @@ async function sign(claims: JWTPayload, protectedHeader: Record<string, unknown>
   return new SignJWT(claims).setProtectedHeader(protectedHeader as { alg: string }).sign(key)
 }
 
-async function badTokens(): Promise<[string, string][]> {
+let made: Promise<[string, string][]> | null = null
+/** The bad tokens, made once per file (key generation and a sign-in take a while). */
+function badTokens(): Promise<[string, string][]> {
+  return (made ??= makeBadTokens())
+}
+
+async function makeBadTokens(): Promise<[string, string][]> {
   const good = fx.share.valid.token
   const [h, p, s] = good.split('.') as [string, string, string]
   const claims = goodClaims()

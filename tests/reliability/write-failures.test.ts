@@ -41,7 +41,8 @@ function failAtRow(db: string, k: number) {
 
 describe('a write that fails at row k', () => {
   const rows = 200
-  for (const k of [1, 2, 37, 100, 199, 200]) {
+  // the first insert, one in the middle, the last but one and the last (just before the commit)
+  for (const k of [1, 37, 199, 200]) {
     it(`leaves the database unchanged and names the file and line when insert ${k} of ${rows} fails`, async () => {
       const db = tmp.path(`row-${k}.db`)
       copyFileSync(template, db)
