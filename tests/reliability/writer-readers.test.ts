@@ -108,7 +108,7 @@ describe('writer and readers together', () => {
           if (numbers.some((v, k) => v !== k + 1)) problems.push(`${f.code}: versions ${numbers.join(',')} have a gap`)
           const own = versions.find((v) => v.id === plan.id)
           if (!own) problems.push(`${f.code}: plan ${plan.id} missing from its versions`)
-          else if (own.fields !== plan.result.fields.length) problems.push(`${f.code}: plan ${plan.id} lists ${own.fields} fields but holds ${plan.result.fields.length}`)
+          else if (own.fields !== (plan.result.fields ?? []).length) problems.push(`${f.code}: plan ${plan.id} lists ${own.fields} fields but holds ${(plan.result.fields ?? []).length}`)
           if ((lastVersion.get(f.code) ?? 0) > plan.version) problems.push(`${f.code}: latest plan went back to version ${plan.version}`)
           lastVersion.set(f.code, plan.version)
         }
