@@ -15,8 +15,8 @@ const what = ['Dairy', 'Finishing', 'Feeders', 'Poultry', 'Mixed Farm', 'Acres',
 export const storageKinds = [
   { kind: 'deep_pit', species: 'swine', form: 'liquid', code: 'PIT', dm: [4, 8], tn: [40, 70], nh4: [0.65, 0.8], p: [25, 48], k: [26, 44], s: [3, 6], ph: [7.2, 8.1], capacity: [600_000, 1_400_000] },
   { kind: 'earthen_basin', species: 'dairy', form: 'liquid', code: 'BASIN', dm: [4, 9], tn: [20, 34], nh4: [0.4, 0.55], p: [9, 17], k: [18, 30], s: [2, 4], ph: [7.0, 7.8], capacity: [1_500_000, 4_000_000] },
-  { kind: 'lagoon', species: 'dairy', form: 'liquid', code: 'LAG', dm: [1, 3], tn: [8, 15], nh4: [0.55, 0.75], p: [3, 7], k: [9, 16], s: [0.8, 2], ph: [7.4, 8.2], capacity: [1_000_000, 3_000_000] },
-  { kind: 'tank', species: 'swine', form: 'liquid', code: 'TANK', dm: [3, 6], tn: [30, 55], nh4: [0.6, 0.78], p: [18, 36], k: [24, 40], s: [2, 5], ph: [7.1, 8.0], capacity: [300_000, 900_000] },
+  { kind: 'lagoon', species: 'dairy', form: 'liquid', code: 'LAG', dm: [1.8, 3.2], tn: [8, 15], nh4: [0.55, 0.75], p: [3, 7], k: [9, 16], s: [0.8, 2], ph: [7.4, 8.2], capacity: [1_000_000, 3_000_000] },
+  { kind: 'tank', species: 'swine', form: 'liquid', code: 'TANK', dm: [3, 6], tn: [33, 55], nh4: [0.6, 0.78], p: [18, 36], k: [24, 40], s: [2, 5], ph: [7.1, 8.0], capacity: [300_000, 900_000] },
   { kind: 'stack', species: 'beef', form: 'solid', code: 'SLAB', dm: [30, 60], tn: [10, 24], nh4: [0.12, 0.3], p: [7, 15], k: [10, 20], s: [1.5, 3], ph: [7.5, 8.6], capacity: [500, 2000] },
   { kind: 'stack', species: 'poultry', form: 'solid', code: 'LITTER', dm: [65, 80], tn: [45, 75], nh4: [0.12, 0.22], p: [45, 70], k: [40, 60], s: [8, 14], ph: [7.6, 8.8], capacity: [200, 900] },
 ]
