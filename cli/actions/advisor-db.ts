@@ -1,4 +1,5 @@
 import { existsSync } from 'node:fs'
+import { migrationNames } from '../../shared/db/migrations.ts'
 import { openReader, openWriter, type OpenDatabase } from '../../shared/db/open-database.ts'
 import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
 import { AppError } from '../../shared/errors.ts'
@@ -13,10 +14,17 @@ export function openAdvisorDb(file: string, mode: 'write' | 'read' = 'write'): O
     throw new AppError('database', `database ${file} does not exist: run \`pitside --db ${file} init\` first (or give the right --db)`)
   }
   const opened = mode === 'write' ? openWriter(file) : openReader(file)
-  const ok = opened.sqlite.prepare(`select 1 from sqlite_master where type = 'table' and name = 'plans'`).get()
-  if (!ok) {
+  const hasTables = opened.sqlite.prepare(`select 1 from sqlite_master where type = 'table' and name = 'kysely_migration'`).get()
+  const applied = new Set(
+    hasTables ? (opened.sqlite.prepare('select name from kysely_migration').all() as { name: string }[]).map((r) => r.name) : [],
+  )
+  if (applied.size === 0) {
     opened.sqlite.close()
     throw new AppError('database', `${file} has no Pitside tables: run \`pitside --db ${file} init\` first (or give the right --db)`)
+  }
+  if (!migrationNames.every((n) => applied.has(n))) {
+    opened.sqlite.close()
+    throw new AppError('database', `database ${file} is not at the latest schema: run \`pitside --db ${file} init\``)
   }
   return opened
 }

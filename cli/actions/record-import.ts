@@ -1,9 +1,6 @@
 import { createHash } from 'node:crypto'
-import { existsSync } from 'node:fs'
 import type SQLite from 'better-sqlite3'
 import type { Kysely } from 'kysely'
-import { migrationNames } from '../../shared/db/migrations.ts'
-import { openWriter, type OpenDatabase } from '../../shared/db/open-database.ts'
 import { insertImportRun, type ImportItem, type PreparedImport, type RecordKind } from '../../shared/db/record-import.ts'
 import type { Database } from '../../shared/db/schema.ts'
 import { AppError, formatProblems, type Problem } from '../../shared/errors.ts'
@@ -11,6 +8,7 @@ import { byLine } from '../../shared/row-reader.ts'
 import type { GlobalOptions } from '../globals.ts'
 import { note, printJson, printTable } from '../output.ts'
 import { readInputText } from '../read-input.ts'
+import { withAdvisorDb } from './advisor-db.ts'
 
 /** What the in-process import cores need: the Kysely handle and the raw connection of one database. */
 export interface ImportDeps {
@@ -184,38 +182,9 @@ function report(file: LoadedSource, prepared: PreparedImport, outcome: FileRepor
   }
 }
 
-/**
- * Opens an existing database at the latest schema for writing. Throws AppError('database') when
- * the file does not exist or needs `pitside init`.
- */
-export function openForWrite(file: string): OpenDatabase {
-  if (!existsSync(file)) throw new AppError('database', `database ${file} does not exist; create it with \`pitside --db ${file} init\``)
-  const opened = openWriter(file)
-  try {
-    const applied = new Set(
-      (opened.sqlite.prepare("select name from sqlite_master where type = 'table' and name = 'kysely_migration'").all().length
-        ? (opened.sqlite.prepare('select name from kysely_migration').all() as { name: string }[])
-        : []
-      ).map((r) => r.name),
-    )
-    if (!migrationNames.every((n) => applied.has(n))) {
-      throw new AppError('database', `database ${file} is not at the latest schema; run \`pitside --db ${file} init\``)
-    }
-  } catch (error) {
-    opened.sqlite.close()
-    throw error
-  }
-  return opened
-}
-
-/** Opens the database, runs `body` and closes it again. */
+/** Opens the database (which must be at the latest schema), runs `body` and closes it again. */
 export async function withDatabase<T>(file: string, body: (deps: ImportDeps) => Promise<T>): Promise<T> {
-  const opened = openForWrite(file)
-  try {
-    return await body({ db: opened.db, sqlite: opened.sqlite })
-  } finally {
-    await opened.close()
-  }
+  return withAdvisorDb(file, 'write', (opened) => body({ db: opened.db, sqlite: opened.sqlite }))
 }
 
 function describeChanges(item: ImportItem): string {

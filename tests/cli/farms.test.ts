@@ -113,6 +113,6 @@ describe('pitside farms (built binary)', () => {
   it('says how to create a database that does not exist', async () => {
     const r = await runCli(['--db', t.tmp.path('missing.db'), 'farms', 'list'])
     expect(r.exitCode).toBe(69)
-    expect(r.stderr).toMatch(/does not exist; create it with `pitside --db .*missing\.db init`/)
+    expect(r.stderr).toMatch(/does not exist: run `pitside --db .*missing\.db init` first/)
   })
 })
