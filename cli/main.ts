@@ -37,6 +37,12 @@ function buildProgram(): Command {
   return program
 }
 
+// A reader that stops early (`pitside plans list | head -1`) closes the pipe: the output is done, not failed.
+process.stdout.on('error', (error: NodeJS.ErrnoException) => {
+  if (error.code === 'EPIPE') process.exit(process.exitCode ?? 0)
+  throw error
+})
+
 const program = buildProgram()
 registerCommands(program)
 
