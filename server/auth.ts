@@ -52,6 +52,12 @@ export class Sessions {
   private readonly signedOut = new Map<string, number>()
   // verified tokens, so a busy page does not verify the same signature on every request
   private readonly verified = new Map<string, { sub: number; jti: string; st: string; exp: number }>()
+  // who is signed in behind each token, kept until another connection (the CLI) writes to the
+  // database: PRAGMA data_version changes with every such commit, so a disabled account, a new
+  // password or changed grants still end or change access at the next request
+  private readonly signedIn = new Map<string, SignedIn>()
+  private signedInVersion = -1
+  private readonly dataVersion: SQLite.Statement<[], number>
 
   constructor(sqlite: SQLite.Database, key: Uint8Array, options: { ttlSeconds: number; now: () => Date }) {
     this.key = key
@@ -67,6 +73,7 @@ export class Sessions {
         where uf.user_id = ? and f.organization_id = ? order by f.code`,
     )
     this.allFarmCodes = sqlite.prepare('select code from farms where organization_id = ? order by code')
+    this.dataVersion = sqlite.prepare<[], number>('pragma data_version').pluck()
   }
 
   /** Signs a session for this account and sets the cookie. */
@@ -137,10 +144,17 @@ export class Sessions {
     if (!claims) return null
     const out = this.signedOut.get(claims.jti)
     if (out !== undefined) return null
+    const version = this.dataVersion.get() as number
+    if (version !== this.signedInVersion) {
+      this.signedIn.clear()
+      this.signedInVersion = version
+    }
+    const known = this.signedIn.get(token)
+    if (known) return known
     const row = this.userById.get(claims.sub)
     if (!row || row.disabled !== 0 || passwordStamp(row.password_hash) !== claims.st) return null
     const grants = row.role === 'client' ? this.grants.all(row.id, row.organization_id) : []
-    return {
+    const signedIn: SignedIn = {
       tokenId: claims.jti,
       expiresAt: new Date(claims.exp * 1000),
       viewer: {
@@ -157,6 +171,9 @@ export class Sessions {
         farms: row.role === 'advisor' ? this.allFarmCodes.all(row.organization_id).map((f) => f.code) : grants.map((g) => g.code),
       }),
     }
+    if (this.signedIn.size > 10_000) this.signedIn.clear()
+    this.signedIn.set(token, signedIn)
+    return signedIn
   }
 
   /** Like read, but throws `unauthorized` when nobody is signed in. */
