@@ -24,6 +24,23 @@ interface Asset {
   gzip: Buffer | null
 }
 
+/**
+ * The API answers a page asks for first, as a Link header: the browser fetches them while it loads
+ * the page's code, and the page's own fetch then takes the answer instead of asking again. The
+ * paths are the ones the client's route loaders prefetch (src/main.tsx).
+ */
+export function pagePreloads(path: string): string | null {
+  let urls: string[]
+  const plan = /^\/plans\/([1-9]\d{0,11})$/.exec(path)
+  const farm = /^\/farms\/([A-Za-z0-9][A-Za-z0-9_.-]{0,39})$/.exec(path)
+  if (plan) urls = ['/api/session', `/api/plans/${plan[1]}`]
+  else if (farm) urls = ['/api/session', `/api/farms/${farm[1]}`]
+  else if (path === '/farms') urls = ['/api/session', '/api/farms']
+  else if (path === '/') urls = ['/api/session']
+  else return null
+  return urls.map((u) => `<${u}>; rel=preload; as=fetch; crossorigin=anonymous`).join(', ')
+}
+
 const compressible = new Set(['.js', '.css', '.svg', '.json', '.html', '.map', '.txt'])
 
 /** The hashed build output, held in memory with a gzipped copy of each text file (they never change while serving). */
@@ -66,7 +83,12 @@ export function webRoutes(webDir: string | null): Router {
     if (!res.get('Cache-Control')) res.set('Cache-Control', 'no-cache')
     res.type('html').send(index)
   }
+  const sendPage: express.RequestHandler = (req, res, next) => {
+    const preloads = pagePreloads(req.path)
+    if (preloads) res.set('Link', preloads)
+    sendIndex(req, res, next)
+  }
   router.get('/s/{*splat}', shareHeaders, sendIndex)
-  router.get('/{*splat}', sendIndex)
+  router.get('/{*splat}', sendPage)
   return router
 }
