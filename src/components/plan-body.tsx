@@ -1,4 +1,4 @@
-import { useState, type ReactNode } from 'react'
+import { useEffect, useState, type ReactNode } from 'react'
 import type { PlanField, PlanStorage, PlanView } from '../../shared/api-types.ts'
 import { Cautions } from './cautions.tsx'
 import { BudgetBar, SupplyChart, useNarrow } from './charts.tsx'
@@ -424,9 +424,29 @@ function PrintSheet({ plan, groups, fieldNames }: { plan: PlanView; groups: Stor
   )
 }
 
+/**
+ * False for a plan's first render, true from the frame after it has been painted: the totals, the
+ * cautions and the field rates show first, the chart, notes, sandbox and factors a frame later.
+ */
+function useAfterFirstPaint(): boolean {
+  const [painted, setPainted] = useState(false)
+  useEffect(() => {
+    let timer: ReturnType<typeof setTimeout> | undefined
+    const frame = requestAnimationFrame(() => {
+      timer = setTimeout(() => setPainted(true))
+    })
+    return () => {
+      cancelAnimationFrame(frame)
+      clearTimeout(timer)
+    }
+  }, [])
+  return painted
+}
+
 /** Everything a plan shows, for the plan page and the shared-plan page. */
 export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: ReactNode; versions?: ReactNode }) {
   const narrow = useNarrow()
+  const painted = useAfterFirstPaint()
   const groups = groupByStorage(plan)
   const fields = plan.result.fields ?? []
   const fieldNames = new Map(plan.fields.map((f) => [f.code, f.name]))
@@ -471,7 +491,7 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
         <p className="mt-2 text-sm text-muted">Supplied is what the crop can use this season; a bold figure falls short of the need.</p>
       </section>
 
-      {fields.length > 0 && (
+      {painted && fields.length > 0 && (
         <section aria-labelledby="chart-title" className="no-print">
           <h2 id="chart-title" className="mb-3 text-xl font-semibold">Supply against need</h2>
           <div className="rounded-md border border-line bg-surface p-3">
@@ -480,14 +500,18 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
         </section>
       )}
 
-      <Notes plan={plan} />
+      {painted && (
+        <>
+          <Notes plan={plan} />
 
-      {whatIf}
+          {whatIf}
 
-      <section aria-labelledby="factors-title" className="no-print">
-        <h2 id="factors-title" className="mb-3 text-xl font-semibold">Factors and sources</h2>
-        <Factors fields={fields} />
-      </section>
+          <section aria-labelledby="factors-title" className="no-print">
+            <h2 id="factors-title" className="mb-3 text-xl font-semibold">Factors and sources</h2>
+            <Factors fields={fields} />
+          </section>
+        </>
+      )}
 
       {versions}
 
