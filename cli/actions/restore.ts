@@ -115,7 +115,13 @@ export async function restoreDatabase(database: string, from: string): Promise<R
   let upgraded: string[] = []
   let report: DatabaseReport
   try {
-    copyFileSync(from, staged)
+    // through SQLite rather than a file copy: a backup file with a -wal beside it is copied whole
+    const source = new SQLite(from, { readonly: true, fileMustExist: true })
+    try {
+      await source.backup(staged, { progress: () => 0x7fffffff })
+    } finally {
+      source.close()
+    }
     const opened = openWriter(staged)
     try {
       upgraded = (await migrateToLatest(opened.db)).applied

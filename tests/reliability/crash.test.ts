@@ -5,7 +5,7 @@
 // §3.3 "Crash testing", sqlite.org/atomiccommit.html) — here with real process kills.
 import SQLite from 'better-sqlite3'
 import { spawn } from 'node:child_process'
-import { existsSync, mkdirSync, statSync, writeFileSync } from 'node:fs'
+import { copyFileSync, existsSync, mkdirSync, rmSync, statSync, writeFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { binPath, runCli } from '../helpers/cli.ts'
@@ -119,46 +119,60 @@ function importState(db: string, file: string, reportId: string): Outcome['state
   }
 }
 
+/** Runs per database: a fresh copy every `chunk` runs keeps each run as cheap as the first under test:stress. */
+const chunk = 25
+
 async function lane(id: number, count: number): Promise<Outcome[]> {
-  const db = tmp.path(`lane-${id}.db`)
-  await makeFarmDatabase(db)
+  const template = tmp.path(`lane-${id}-template.db`)
+  await makeFarmDatabase(template)
   // how long a whole import takes here and now (start-up included, the other lane running too);
-  // the after-commit runs below refine it with the moment their commit became visible
+  // runs that finish by themselves refine it below
+  const calibrationDb = tmp.path(`lane-${id}-calibrate.db`)
+  copyFileSync(template, calibrationDb)
   writeLabFile(tmp.path(`calibrate-${id}.csv`), `CRA-26-C${id}`, rowsPerFile)
   const started = performance.now()
-  const calibration = await runCli(['--db', db, '-q', 'labs', 'import', tmp.path(`calibrate-${id}.csv`)])
+  const calibration = await runCli(['--db', calibrationDb, '-q', 'labs', 'import', tmp.path(`calibrate-${id}.csv`)])
   if (calibration.exitCode !== 0) throw new Error(`calibration import failed: ${calibration.stderr}`)
   let fullRunMs = performance.now() - started
   const out: Outcome[] = []
-  for (let i = 0; i < count; i++) {
-    // every tenth run is killed just before its commit, every tenth just after, the rest at random
-    const moment: Moment = i % 10 === 1 ? 'after-commit' : i % 10 === 6 ? 'before-commit' : 'random'
-    const reportId = `CRA-26-L${id}R${i}`
-    const file = tmp.path(`${reportId}.csv`)
-    writeLabFile(file, reportId, rowsPerFile, i + 1)
-    if (moment === 'before-commit') installBallast(db)
-    // most of a run is Node's start-up; aim the random kills over the whole run, weighted to its later part
-    const killAfterMs = fullRunMs * (0.5 + 0.7 * Math.random())
-    const { exited, ms } = await runAndKill(db, file, moment, killAfterMs, reportId)
-    if (exited === 0) fullRunMs = (fullRunMs + ms) / 2 // follow the machine's current pace
-    if (moment === 'before-commit') expect(removeBallast(db)).toBe(0) // the ballast rolled back with the import
-    const check = checkFile(db)
-    out.push({
-      moment,
-      killAfterMs: moment === 'random' ? Math.round(killAfterMs) : null,
-      exitedByItself: exited,
-      state: importState(db, file, reportId),
-      integrity: check.integrity,
-      foreignKeys: check.foreignKeys.length,
-    })
+  for (let from = 0; from < count; from += chunk) {
+    const db = tmp.path(`lane-${id}-${from}.db`)
+    copyFileSync(template, db)
+    const files: string[] = []
+    const states: Outcome['state'][] = []
+    for (let i = from; i < Math.min(count, from + chunk); i++) {
+      // every tenth run is killed just before its commit, every tenth just after, the rest at random
+      const moment: Moment = i % 10 === 1 ? 'after-commit' : i % 10 === 6 ? 'before-commit' : 'random'
+      const reportId = `CRA-26-L${id}R${i}`
+      const file = tmp.path(`${reportId}.csv`)
+      writeLabFile(file, reportId, rowsPerFile, i + 1)
+      files.push(file)
+      if (moment === 'before-commit') installBallast(db)
+      // most of a run is Node's start-up; aim the random kills over the whole run, weighted to its later part
+      const killAfterMs = fullRunMs * (0.5 + 0.7 * Math.random())
+      const { exited, ms } = await runAndKill(db, file, moment, killAfterMs, reportId)
+      if (exited === 0) fullRunMs = (fullRunMs + ms) / 2 // follow the machine's current pace
+      if (moment === 'before-commit') expect(removeBallast(db)).toBe(0) // the ballast rolled back with the import
+      const check = checkFile(db)
+      const state = importState(db, file, reportId)
+      states.push(state)
+      out.push({
+        moment,
+        killAfterMs: moment === 'random' ? Math.round(killAfterMs) : null,
+        exitedByItself: exited,
+        state,
+        integrity: check.integrity,
+        foreignKeys: check.foreignKeys.length,
+      })
+    }
+    // the database takes every file again: the killed imports go in, the committed ones are no-ops
+    const again = await runCli(['--db', db, '-q', '--json', 'labs', 'import', ...files])
+    expect(again.exitCode, String(again.stderr)).toBe(0)
+    const summary = JSON.parse(String(again.stdout)) as { files: { outcome: string }[] }
+    summary.files.forEach((f, i) => expect(f.outcome).toBe(states[i] === 'present' ? 'unchanged' : 'imported'))
+    expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
+    for (const f of [db, `${db}-wal`, `${db}-shm`, ...files]) rmSync(f, { force: true })
   }
-  // the database takes every file again: the killed imports go in, the committed ones are no-ops
-  const files = Array.from({ length: count }, (_, i) => tmp.path(`CRA-26-L${id}R${i}.csv`))
-  const again = await runCli(['--db', db, '-q', '--json', 'labs', 'import', ...files])
-  expect(again.exitCode, String(again.stderr)).toBe(0)
-  const summary = JSON.parse(String(again.stdout)) as { files: { outcome: string }[] }
-  summary.files.forEach((f, i) => expect(f.outcome).toBe(out[i]!.state === 'present' ? 'unchanged' : 'imported'))
-  expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
   return out
 }
 

@@ -14,7 +14,7 @@ import { checkFile } from './helpers/dump.ts'
 import { makeFarmDatabase } from './helpers/lab-db.ts'
 import { writeLabFile } from './helpers/lab-files.ts'
 import { serve, signInTo, type Served } from './helpers/serve-process.ts'
-import { stressFactor } from './helpers/stress.ts'
+import { scaledTimeout, stressFactor } from './helpers/stress.ts'
 
 const root = fileURLToPath(new URL('../../', import.meta.url))
 const durationS = stressFactor > 1 ? 30 : 8
@@ -166,5 +166,5 @@ describe('writer and readers together', () => {
     if (report.written_mb > 16) expect(report.wal_max_mb).toBeLessThan(report.written_mb * 0.75)
     expect(server.stderr()).not.toMatch(/unexpected failure/)
     expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
-  }, 180_000 + durationS * 1000)
+  }, scaledTimeout(180_000))
 })

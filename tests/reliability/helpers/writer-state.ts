@@ -8,8 +8,8 @@ const writerScript = fileURLToPath(new URL('./writer.mjs', import.meta.url))
  * Starts tests/reliability/helpers/writer.mjs against `file` and resolves once it has opened the database.
  * `count` 0 writes until killed.
  */
-export async function startWriter(file: string, { count = 0, size = 20, pauseMs = 0 } = {}): Promise<ChildProcess> {
-  const child = fork(writerScript, [file, String(count), String(size), String(pauseMs)], { stdio: ['ignore', 'pipe', 'inherit', 'ipc'] })
+export async function startWriter(file: string, { count = 0, size = 20, pauseMs = 0, keep = 0 } = {}): Promise<ChildProcess> {
+  const child = fork(writerScript, [file, String(count), String(size), String(pauseMs), String(keep)], { stdio: ['ignore', 'pipe', 'inherit', 'ipc'] })
   await new Promise<void>((resolve, reject) => {
     child.once('message', () => resolve())
     child.once('exit', (code) => reject(new Error(`writer exited early with ${code}`)))
@@ -26,11 +26,11 @@ export async function stopWriter(child: ChildProcess): Promise<void> {
 }
 
 /**
- * What the writer has committed in `file`: the number of batches and a list of reasons the file is not
- * one committed state (a batch with missing farms, a gap in the batch numbers, stray farms). Empty
- * when it is consistent.
+ * What the writer has committed in `file`: the number of batches present, the newest one, and a list
+ * of reasons the file is not one committed state (a batch with missing farms, a gap in the batch
+ * numbers, stray farms). The list is empty when it is consistent.
  */
-export function writerState(file: string, size = 20): { batches: number; problems: string[] } {
+export function writerState(file: string, size = 20): { batches: number; last: number; problems: string[] } {
   const sqlite = new SQLite(file, { readonly: true, fileMustExist: true })
   try {
     const runs = (
@@ -42,12 +42,12 @@ export function writerState(file: string, size = 20): { batches: number; problem
     const problems: string[] = []
     const ks = new Set(runs)
     runs.sort((a, b) => a - b).forEach((k, i) => {
-      if (k !== i + 1) problems.push(`batch ${i + 1} missing before batch ${k}`)
+      if (i > 0 && k !== runs[i - 1]! + 1) problems.push(`batches ${runs[i - 1]! + 1}..${k - 1} missing before batch ${k}`)
     })
     const counted = new Map(farms.map((f) => [Number(f.k), f.n]))
     for (const k of ks) if (counted.get(k) !== size) problems.push(`batch ${k} has ${counted.get(k) ?? 0} farms, not ${size}`)
     for (const k of counted.keys()) if (!ks.has(k)) problems.push(`farms of batch ${k} without its import run`)
-    return { batches: runs.length, problems }
+    return { batches: runs.length, last: runs.length ? runs[runs.length - 1]! : 0, problems }
   } finally {
     sqlite.close()
   }
