@@ -188,7 +188,9 @@ export async function findFarmDetail(db: Kysely<Database>, viewer: Viewer, code:
     const bySeason = new Map<number, SampleResult[]>()
     for (const r of samples) {
       const season = Number(r.sampled_on.slice(0, 4))
-      bySeason.set(season, [...(bySeason.get(season) ?? []), r])
+      const list = bySeason.get(season) // appended in place: copying the list for each sample was quadratic
+      if (list) list.push(r)
+      else bySeason.set(season, [r])
     }
     const trend: SeasonTrend[] = [...bySeason.entries()]
       .sort(([a], [b]) => a - b)
