@@ -4,6 +4,7 @@ import { parseCsvTable, type ColumnSpec } from './csv-table.ts'
 import { parseCsv } from './csv.ts'
 import type { Problem } from './errors.ts'
 import type { LabProfile } from './lab-profile.ts'
+import { canonicalDecimal, storedColumns } from './lab-reported.ts'
 
 /**
  * One lab result as the file gives it: codes, the unit and basis it is reported in, and the
@@ -43,6 +44,12 @@ export interface LabRow {
   ph: number | null
   /** JSON object: column → the cell's text as written, for every analysis cell that is not empty */
   reported: string
+  /**
+   * `reported` without the cells written as plain canonical decimals ("28.71", not "28.710",
+   * "028.71" or "<0.1"), whose text String(value) gives back: what a result stored with its
+   * values as reported needs to keep (see reportedCells in shared/lab-reported.ts)
+   */
+  reportedOdd: string
   /** JSON object: column → '<' (below detection) or '>' (above range); null when there are none */
   qualifiers: string | null
   /** warnings about this row (qualifiers, a dry matter derived from moisture, …); null when none */
@@ -372,9 +379,10 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     line: 0, reportId: '', sampleId: '', sampledOn: '', farm: '', storage: '', form: null, species: null,
     basis: 'as_is', units: 'lb_per_1000gal', lab: null, notes: null, dryMatterPct: null, totalN: 0,
     ammoniumN: null, p2o5: null, p: null, k2o: null, k: null, sulfur: null, ph: null, reported: '',
-    qualifiers: null, warnings: null,
+    reportedOdd: '', qualifiers: null, warnings: null,
   }
   let reported = ''
+  let reportedOdd = ''
   let qualifiers = ''
   let cells: readonly string[] = []
   let line = 0
@@ -399,10 +407,14 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     }
     // in a decimal-comma file "6.240" is a thousands separator (or ambiguous), never 6.24
     if (plainNumber.test(raw) && (decimal === '.' || raw.indexOf('.') === -1)) {
-      reported += (reported === '' ? '"' : ',"') + column + '":"' + raw + '"'
+      const entry = '"' + column + '":"' + raw + '"'
+      reported += reported === '' ? entry : ',' + entry
+      if (!storedColumns.has(column) || !canonicalDecimal.test(raw)) reportedOdd += reportedOdd === '' ? entry : ',' + entry
       return Number(raw)
     }
-    reported += (reported === '' ? '"' : ',"') + column + '":' + JSON.stringify(raw)
+    const entry = '"' + column + '":' + JSON.stringify(raw)
+    reported += reported === '' ? entry : ',' + entry
+    reportedOdd += reportedOdd === '' ? entry : ',' + entry
     const parsed = parseNumberCell(raw, decimal)
     if (!parsed.ok) {
       err(column, 'not_a_number', parsed.reason)
@@ -427,6 +439,7 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     bad = false
     warnings = null
     reported = ''
+    reportedOdd = ''
     qualifiers = ''
 
     const reportId = cell(iReport)
@@ -540,6 +553,7 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     row.sulfur = sulfur
     row.ph = ph
     row.reported = '{' + reported + '}'
+    row.reportedOdd = '{' + reportedOdd + '}'
     row.qualifiers = qualifiers === '' ? null : '{' + qualifiers + '}'
     row.warnings = warnings
     passed++

@@ -6,10 +6,11 @@ import {
   findLabImportBySha,
   findLabStorages,
   findSamplingEvents,
-  writeLabFile,
   labHistoryReader,
   labResultSignature,
 } from '../../shared/db/labs.ts'
+import { LabRowWriteError } from '../../shared/db/lab-write.ts'
+import { startLabFileWriter, type LabFileWriter } from '../../shared/db/lab-writer.ts'
 import type { Database } from '../../shared/db/schema.ts'
 import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
 import { decodeText } from '../../shared/decode-text.ts'
@@ -169,12 +170,19 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   if (decoded.problem) return refuse([decoded.problem], 'not a UTF-8 text file')
 
   // One pass: each row is parsed, resolved, checked and sorted into new / unchanged / replacing,
-  // and the new ones go into the file's open transaction. The transaction is committed only when
-  // the last row has passed; one error anywhere rolls the whole file back.
+  // and the new ones go to the file's open transaction (written by a worker thread while the
+  // next rows are read: shared/db/lab-writer.ts). The transaction is committed only when the last
+  // row has passed; one error anywhere rolls the whole file back.
+  let writer: LabFileWriter
+  try {
+    writer = await startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null })
+  } catch (error) {
+    throw writeFailure(error, name)
+  }
   const context: LabCheckContext = {
     storages: batch.storages,
     farms: batch.farms,
-    history: labHistoryReader(sqlite),
+    history: labHistoryReader(sqlite, writer.runId),
     bookValues: batch.bookValues,
     samplingEvents: batch.samplingEvents,
   }
@@ -184,53 +192,50 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   const values = emptyLabResultValues()
   let unchanged = 0
   let read: ReturnType<typeof readLabCsv> | undefined
-  let added = 0
-  let replaced = 0
+  let written: Awaited<ReturnType<LabFileWriter['finish']>> = null
+  let finished = false
   try {
-    summary.importRunId = writeLabFile(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null }, (writer) => {
-      read = readLabCsv(decoded.text, { file: name, profile: options.profile ?? null, ...(options.today ? { today: options.today } : {}) }, (row) => {
-        if (!checkLabRow(row, context, checkProblems, values)) return
-        if (checkProblems.length > 0) return // refused anyway: go on checking, stop writing
-        const existing = stored(row.reportId).get(row.sampleId)
-        let supersedes: number | null = null
-        if (existing) {
-          if (existing.signature === signatureOf(row, values)) {
-            unchanged++
-            return
-          }
-          if (!options.replace) {
-            unchanged++
-            rowWarnings.push({
-              code: 'stored_differs',
-              severity: 'warning',
-              line: row.line,
-              column: 'sample_id',
-              message: `report ${row.reportId} sample ${row.sampleId} is already stored with other values; kept the stored result (use --replace to supersede it)`,
-            })
-            return
-          }
-          supersedes = existing.id
+    read = readLabCsv(decoded.text, { file: name, profile: options.profile ?? null, ...(options.today ? { today: options.today } : {}) }, (row) => {
+      if (!checkLabRow(row, context, checkProblems, values)) return
+      if (checkProblems.length > 0 || writer.failed) return // refused anyway: go on checking, stop writing
+      const existing = stored(row.reportId).get(row.sampleId)
+      let supersedes: number | null = null
+      if (existing) {
+        if (existing.signature === signatureOf(row, values)) {
+          unchanged++
+          return
         }
-        if (values.warnings) {
-          for (const w of values.warnings) {
-            const colon = w.indexOf(': ')
-            rowWarnings.push({ code: 'plausibility', severity: 'warning', line: row.line, column: w.slice(0, colon), message: w.slice(colon + 2) })
-          }
+        if (!options.replace) {
+          unchanged++
+          rowWarnings.push({
+            code: 'stored_differs',
+            severity: 'warning',
+            line: row.line,
+            column: 'sample_id',
+            message: `report ${row.reportId} sample ${row.sampleId} is already stored with other values; kept the stored result (use --replace to supersede it)`,
+          })
+          return
         }
-        try {
-          writer.add(row, values, supersedes)
-        } catch (error) {
-          throw writeFailure(error, `${name}:${row.line}`)
+        supersedes = existing.id
+      }
+      if (values.warnings) {
+        for (const w of values.warnings) {
+          const colon = w.indexOf(': ')
+          rowWarnings.push({ code: 'plausibility', severity: 'warning', line: row.line, column: w.slice(0, colon), message: w.slice(colon + 2) })
         }
-      })
-      added = writer.count
-      replaced = writer.replaced
-      if (checkProblems.length > 0 || read.problems.some((p) => p.severity !== 'warning')) return null
-      return { rows: read.rows, unchanged, warnings: read.problems.length + rowWarnings.length }
+      }
+      writer.add(row, values, supersedes)
     })
+    const passed = checkProblems.length === 0 && !read.problems.some((p) => p.severity !== 'warning')
+    finished = true
+    written = await writer.finish(passed ? { rows: read.rows, unchanged, warnings: read.problems.length + rowWarnings.length } : null)
   } catch (error) {
-    throw writeFailure(error, name)
+    if (!finished) await writer.finish(null).catch(() => undefined)
+    throw writeFailure(error, error instanceof LabRowWriteError ? `${name}:${error.line}` : name)
   }
+  summary.importRunId = written?.runId ?? null
+  const added = written?.count ?? 0
+  const replaced = written?.replaced ?? 0
   const r = read!
   const errors = [...r.problems.filter((p) => p.severity !== 'warning'), ...checkProblems].sort((a, b) => (a.line ?? 0) - (b.line ?? 0))
   summary.rows = r.rows + countRowsWithErrors(r.problems)

@@ -1,12 +1,10 @@
 import type SQLite from 'better-sqlite3'
 import { AppError } from '../errors.ts'
-import type { LabRow } from '../lab-csv.ts'
-import type { LabHistory, LabResultValues, LabStorage } from '../lab-results.ts'
+import type { LabHistory, LabStorage } from '../lab-results.ts'
 
 /**
  * Lab-result queries for the import's hot path: look-ups loaded once per batch or once per
- * storage/report (never per row), and prepared better-sqlite3 statements inside one transaction
- * per file.
+ * storage/report (never per row). Writing a file's results: shared/db/lab-writer.ts.
  */
 
 /** Every farm and storage, keyed by lower-case codes, for resolving the codes in lab files. */
@@ -45,13 +43,14 @@ const historyColumns = ['total_n', 'ammonium_n', 'p2o5', 'k2o', 'dry_matter_pct'
  * A reader of each storage's current (not superseded) results: count, mean and sample standard
  * deviation per analysis column. One indexed query per storage, the first time it is asked for.
  */
-export function labHistoryReader(sqlite: SQLite.Database): (storageId: number) => LabHistory | undefined {
+export function labHistoryReader(sqlite: SQLite.Database, importRunId: number | null = null): (storageId: number) => LabHistory | undefined {
   const select = historyColumns.map((c) => `count(${c}) as ${c}_n, avg(${c}) as ${c}_mean, avg(${c} * ${c}) as ${c}_sq`).join(', ')
-  const query = sqlite.prepare(`select ${select} from lab_results where storage_id = ? and superseded_by is null`)
+  // results of the import run being written are not history (whichever connection writes them)
+  const query = sqlite.prepare(`select ${select} from lab_results where storage_id = ? and superseded_by is null and import_run_id is not ?`)
   const cache = new Map<number, LabHistory | undefined>()
   return (storageId) => {
     if (cache.has(storageId)) return cache.get(storageId)
-    const r = query.get(storageId) as Record<string, number>
+    const r = query.get(storageId, importRunId) as Record<string, number>
     let h: LabHistory | undefined
     for (const c of historyColumns) {
       const n = r[`${c}_n`]!
@@ -138,143 +137,5 @@ export function currentLabResultsReader(sqlite: SQLite.Database): (reportNumber:
     }
     cache.set(reportNumber, found)
     return found
-  }
-}
-
-/** Adds results to the lab file being written. */
-export interface LabFileWriter {
-  add(row: LabRow, values: LabResultValues, supersedes: number | null): void
-  /** results added so far */
-  readonly count: number
-  readonly replaced: number
-}
-
-export interface LabFileMeta {
-  fileName: string
-  sha256: string
-  message: string | null
-}
-
-export interface LabFileCounts {
-  /** rows in the file */
-  rows: number
-  unchanged: number
-  warnings: number
-}
-
-const orNull = (x: number | null) => (x === null || x !== x ? null : x)
-
-/**
- * Writes one lab file in ONE transaction, all or nothing: its import run, one lab report per
- * report number, and every result that `fill` adds (superseding stored ones where asked). `fill`
- * reads and checks the file and returns its counts when the whole file passed, or null: then the
- * transaction is rolled back and nothing of the file is ever stored. The transaction is committed
- * only after the last row was checked, and only when results were added. Returns the import run
- * id, or null when nothing was committed.
- *
- * Foreign keys are checked here once per distinct storage and sampling event instead of by SQLite
- * for every row (a third of the write time): the transaction holds the write lock from the
- * start, so no other writer can remove a storage before the commit, and the import run and lab
- * reports are rows of this same transaction.
- */
-export function writeLabFile(sqlite: SQLite.Database, meta: LabFileMeta, fill: (writer: LabFileWriter) => LabFileCounts | null): number | null {
-  const insertRun = sqlite.prepare(
-    `insert into import_runs (kind, file_name, sha256, outcome, message) values ('labs', ?, ?, 'imported', ?)`,
-  )
-  const finishRun = sqlite.prepare(
-    `update import_runs set rows = ?, rows_new = ?, rows_unchanged = ?, warnings = ?, outcome = ? where id = ?`,
-  )
-  const insertReport = sqlite.prepare(
-    `insert into lab_reports (lab, report_number, source_file, source_sha256, import_run_id) values (?, ?, ?, ?, ?)`,
-  )
-  const insertResult = sqlite.prepare(
-    `insert into lab_results (lab_report_id, storage_id, sampling_event_id, report_number, sample_code, sampled_on, line,
-       form, species, basis, units, reported, qualifiers, per_unit, dry_matter_pct, total_n, ammonium_n, organic_n,
-       p2o5, k2o, sulfur, ph, notes, warnings, import_run_id)
-     values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-  )
-  const supersede = sqlite.prepare(`update lab_results set superseded_by = ? where id = ?`)
-  const storageExists = sqlite.prepare(`select 1 from storages where id = ?`).pluck()
-  const eventExists = sqlite.prepare(`select 1 from sampling_events where id = ?`).pluck()
-
-  const foreignKeys = sqlite.pragma('foreign_keys', { simple: true }) as number
-  if (foreignKeys) sqlite.pragma('foreign_keys = OFF')
-  let open = false
-  try {
-    sqlite.exec('begin immediate')
-    open = true
-    const runId = Number(insertRun.run(meta.fileName, meta.sha256, meta.message).lastInsertRowid)
-    const reports = new Map<string, number>()
-    const storages = new Set<number>()
-    const events = new Set<number>()
-    let lastStorage = -1
-    const writer = {
-      count: 0,
-      replaced: 0,
-      add(row: LabRow, v: LabResultValues, supersedes: number | null) {
-        let reportId = reports.get(row.reportId)
-        if (reportId === undefined) {
-          reportId = Number(insertReport.run(row.lab, row.reportId, meta.fileName, meta.sha256, runId).lastInsertRowid)
-          reports.set(row.reportId, reportId)
-        }
-        if (v.storageId !== lastStorage) {
-          storages.add(v.storageId)
-          lastStorage = v.storageId
-        }
-        if (v.samplingEventId !== null) events.add(v.samplingEventId)
-        const { lastInsertRowid } = insertResult.run(
-          reportId,
-          v.storageId,
-          v.samplingEventId,
-          row.reportId,
-          row.sampleId,
-          row.sampledOn,
-          row.line,
-          v.form,
-          v.species,
-          row.basis,
-          row.units,
-          row.reported,
-          row.qualifiers,
-          v.perUnit,
-          orNull(v.dryMatterPct),
-          v.totalN,
-          orNull(v.ammoniumN),
-          orNull(v.organicN),
-          orNull(v.p2o5),
-          orNull(v.k2o),
-          orNull(v.sulfur),
-          orNull(row.ph),
-          row.notes,
-          v.warnings ? JSON.stringify(v.warnings) : null,
-          runId,
-        )
-        if (supersedes !== null) {
-          supersede.run(lastInsertRowid, supersedes)
-          writer.replaced++
-        }
-        writer.count++
-      },
-    }
-    const counts = fill(writer)
-    if (!counts || writer.count === 0) {
-      sqlite.exec('rollback')
-      open = false
-      return null
-    }
-    for (const id of storages) {
-      if (!storageExists.get(id)) throw new AppError('conflict', `storage ${id} was removed while the lab file was being imported; nothing was written`)
-    }
-    for (const id of events) {
-      if (!eventExists.get(id)) throw new AppError('conflict', `sampling event ${id} was removed while the lab file was being imported; nothing was written`)
-    }
-    finishRun.run(counts.rows, writer.count, counts.unchanged, counts.warnings, writer.replaced > 0 ? 'replaced' : 'imported', runId)
-    sqlite.exec('commit')
-    open = false
-    return runId
-  } finally {
-    // SQLite may already have rolled back (a full disk at commit); rolling back again would hide why
-    if (open && sqlite.inTransaction) sqlite.exec('rollback')
-    if (foreignKeys) sqlite.pragma('foreign_keys = ON')
   }
 }

@@ -1,0 +1,88 @@
+import SQLite from 'better-sqlite3'
+import { parentPort, workerData } from 'node:worker_threads'
+import { isAppError } from '../errors.ts'
+import { beginLabFileWrite, LabRowWriteError, rowStrings, type LabFileMeta, type LabFileWrite } from './lab-write.ts'
+import type { WorkerReply, WorkerRequest, WriteFailure } from './lab-writer.ts'
+
+/**
+ * The lab import's writer thread: its own connection to the database file, one transaction for
+ * one lab file (shared/db/lab-write.ts), fed batches by the parsing thread (shared/db/lab-writer.ts).
+ * Each batch done is counted in `control[0]` so that the parser never runs far ahead; the first
+ * failure sets `control[1]`, later batches are dropped and the failure is the answer to `finish`.
+ */
+const { file, meta, control: controlBuffer, busyTimeoutMs } = workerData as { file: string; meta: LabFileMeta; control: SharedArrayBuffer; busyTimeoutMs: number }
+const control = new Int32Array(controlBuffer)
+const port = parentPort!
+const reply = (m: WorkerReply) => port.postMessage(m)
+
+function failureOf(error: unknown): WriteFailure {
+  if (error instanceof LabRowWriteError) return { kind: 'row', line: error.line, code: error.code ?? null, message: error.message }
+  if (isAppError(error)) return { kind: 'app', code: error.code, message: error.message }
+  return { kind: 'other', code: (error as { code?: string })?.code ?? null, message: (error as Error)?.message ?? String(error) }
+}
+
+let sqlite: SQLite.Database | undefined
+let write: LabFileWrite | undefined
+let failure: WriteFailure | null = null
+
+const fail = (error: unknown) => {
+  failure ??= failureOf(error)
+  Atomics.store(control, 1, 1)
+  Atomics.notify(control, 0)
+}
+
+const done = () => {
+  port.off('message', onMessage)
+  sqlite?.close()
+  sqlite = undefined
+}
+
+function onMessage(m: WorkerRequest) {
+  if (m.type === 'rows') {
+    if (!failure && write) {
+      try {
+        const strings = m.text.split('\u0000')
+        if (strings.length !== m.count * rowStrings) throw new Error(`a batch of ${m.count} rows arrived with ${strings.length} strings`)
+        write.insert(strings, new Float64Array(m.numbers), m.count)
+      } catch (error) {
+        fail(error)
+      }
+    }
+    Atomics.add(control, 0, 1)
+    Atomics.notify(control, 0)
+    return
+  }
+  if (m.type === 'finish') {
+    if (!failure && write && m.counts) {
+      try {
+        const runId = write.commit(m.counts)
+        reply({ type: 'committed', runId, count: write.count, replaced: write.replaced })
+        return done()
+      } catch (error) {
+        fail(error)
+      }
+    }
+    try {
+      write?.rollback()
+    } catch (error) {
+      fail(error)
+    }
+    reply(failure ? { type: 'failed', failure } : { type: 'rolled-back' })
+    done()
+  }
+}
+
+port.on('message', onMessage)
+try {
+  sqlite = new SQLite(file, { fileMustExist: true })
+  sqlite.pragma(`busy_timeout = ${busyTimeoutMs}`)
+  sqlite.pragma('journal_mode = WAL')
+  sqlite.pragma('synchronous = NORMAL')
+  sqlite.pragma('foreign_keys = ON')
+  write = beginLabFileWrite(sqlite, meta)
+  reply({ type: 'ready', runId: write.runId })
+} catch (error) {
+  fail(error)
+  reply({ type: 'failed', failure: failure! })
+  done()
+}

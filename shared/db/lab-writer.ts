@@ -1,0 +1,205 @@
+import type SQLite from 'better-sqlite3'
+import { existsSync } from 'node:fs'
+import { fileURLToPath } from 'node:url'
+import { Worker } from 'node:worker_threads'
+import { AppError, type ErrorCode } from '../errors.ts'
+import type { LabRow } from '../lab-csv.ts'
+import type { LabResultValues } from '../lab-results.ts'
+import { beginLabFileWrite, LabRowBatch, LabRowWriteError, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
+
+/**
+ * Writes one lab file while it is being read. With a database file and the compiled program, the
+ * inserts run in a worker thread on its own connection (shared/db/lab-write-worker.ts), so that
+ * SQLite writes one batch while this thread parses and checks the next: on two cores the import
+ * takes about as long as the longer of the two instead of their sum. Otherwise (an in-memory
+ * database, the TypeScript sources under the test runner, or PITSIDE_LAB_WRITER=thread) the same
+ * batches are written in this thread. Either way: one transaction, committed only by `finish`
+ * with the file's counts; `finish(null)` or any failure leaves nothing of the file.
+ *
+ * While a worker writes, this thread's own connection only reads, and sees the database as it was
+ * committed before the file's transaction began (the worker holds the write lock from the start).
+ */
+export interface LabFileWriter {
+  /** the import run the results belong to */
+  readonly runId: number
+  /** Queues one checked row for the file's transaction. */
+  add(row: LabRow, values: LabResultValues, supersedes: number | null): void
+  /** True once a write failed: later rows are not written and `finish` rejects with the failure. */
+  readonly failed: boolean
+  /**
+   * Commits the file with its counts and resolves to what was written, or, with null, rolls it
+   * back and resolves to null. Rejects with the first failed write (LabRowWriteError names the
+   * row's line; AppError for a conflict), after rolling back.
+   */
+  finish(counts: LabFileCounts | null): Promise<{ runId: number; count: number; replaced: number } | null>
+}
+
+export type WriteFailure =
+  | { kind: 'row'; line: number; code: string | null; message: string }
+  | { kind: 'app'; code: ErrorCode; message: string }
+  | { kind: 'other'; code: string | null; message: string }
+
+export type WorkerRequest =
+  | { type: 'rows'; text: string; numbers: ArrayBuffer; count: number }
+  | { type: 'finish'; counts: LabFileCounts | null }
+
+export type WorkerReply =
+  | { type: 'ready'; runId: number }
+  | { type: 'committed'; runId: number; count: number; replaced: number }
+  | { type: 'rolled-back' }
+  | { type: 'failed'; failure: WriteFailure }
+
+const workerFile = fileURLToPath(new URL('./lab-write-worker.js', import.meta.url))
+/** Batches the parser may run ahead of the writer (memory: about 1 MB each). */
+const maxQueued = Number(process.env.PITSIDE_Q ?? 8)
+const busyTimeoutMs = 5000
+
+function errorOf(f: WriteFailure): Error {
+  if (f.kind === 'row') return new LabRowWriteError(f.line, f.code ?? undefined, f.message)
+  if (f.kind === 'app') return new AppError(f.code, f.message)
+  return Object.assign(new Error(f.message), f.code ? { code: f.code } : {})
+}
+
+/** True when this file's results will be written by a worker thread. */
+export function labWriterUsesWorker(sqlite: SQLite.Database): boolean {
+  const mode = process.env.PITSIDE_LAB_WRITER
+  if (mode === 'thread') return false
+  return !sqlite.memory && sqlite.name !== '' && existsSync(sqlite.name) && existsSync(workerFile)
+}
+
+/** Begins one lab file's transaction (see LabFileWriter). Throws what opening it throws (locked, disk). */
+export async function startLabFileWriter(sqlite: SQLite.Database, meta: LabFileMeta): Promise<LabFileWriter> {
+  return labWriterUsesWorker(sqlite) ? startWorker(sqlite, meta) : startInThread(sqlite, meta)
+}
+
+function startInThread(sqlite: SQLite.Database, meta: LabFileMeta): LabFileWriter {
+  const write = beginLabFileWrite(sqlite, meta)
+  let batch = new LabRowBatch()
+  let failure: unknown = null
+  const flush = () => {
+    if (batch.count === 0 || failure) return
+    try {
+      write.insert(batch.strings, batch.numbers, batch.count)
+    } catch (error) {
+      failure = error
+    }
+    batch.strings = []
+    batch.count = 0
+  }
+  return {
+    runId: write.runId,
+    get failed() {
+      return failure !== null
+    },
+    add(row, values, supersedes) {
+      if (failure) return
+      batch.add(row, values, supersedes)
+      if (batch.full) flush()
+    },
+    async finish(counts) {
+      flush()
+      if (failure || !counts || write.count === 0) {
+        write.rollback()
+        if (failure) throw failure
+        return null
+      }
+      const runId = write.commit(counts)
+      return { runId, count: write.count, replaced: write.replaced }
+    },
+  }
+}
+
+async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta): Promise<LabFileWriter> {
+  const file = sqlite.name
+  const control = new Int32Array(new SharedArrayBuffer(8)) // [batches done, failed]
+  // the writer only turns batches into inserts: a small heap keeps the import's memory flat
+  const worker = new Worker(workerFile, {
+    workerData: { file, meta, control: control.buffer, busyTimeoutMs },
+    resourceLimits: { maxYoungGenerationSizeMb: 8, maxOldGenerationSizeMb: 96 },
+  })
+  const exited = new Promise<void>((resolve) => worker.once('exit', () => resolve()))
+  // the worker's answers in order; an error or exit without an answer rejects the one awaited
+  const answers: WorkerReply[] = []
+  let waiting: { resolve: (m: WorkerReply) => void; reject: (e: unknown) => void } | null = null
+  let broken: unknown = null
+  worker.on('message', (m: WorkerReply) => {
+    if (waiting) {
+      waiting.resolve(m)
+      waiting = null
+    } else answers.push(m)
+  })
+  const breakWith = (error: unknown) => {
+    broken ??= error
+    waiting?.reject(broken)
+    waiting = null
+  }
+  worker.on('error', (error) => breakWith(error))
+  worker.on('exit', () => breakWith(new Error('the lab writer thread stopped before it answered')))
+  const next = () =>
+    new Promise<WorkerReply>((resolve, reject) => {
+      const m = answers.shift()
+      if (m) return resolve(m)
+      if (broken) return reject(broken)
+      waiting = { resolve, reject }
+    })
+
+  const first = await next().catch(async (error) => {
+    await exited
+    throw error
+  })
+  if (first.type !== 'ready') {
+    await exited
+    throw first.type === 'failed' ? errorOf(first.failure) : new Error(`the lab writer thread answered ${first.type} before it was ready`)
+  }
+
+  // this thread's look-ups (stored results, history) read in one read transaction, opened once
+  // the worker holds the write lock: one snapshot instead of a lock round-trip per query
+  sqlite.exec('begin')
+  const endRead = () => {
+    if (sqlite.inTransaction) sqlite.exec('commit')
+  }
+  let batch = new LabRowBatch()
+  let sent = 0
+  let queued = 0
+  const failed = () => Atomics.load(control, 1) === 1
+  const send = () => {
+    if (batch.count === 0) return
+    // wait while the writer is more than maxQueued batches behind (it notifies after each batch)
+    for (let done = Atomics.load(control, 0); sent - done >= maxQueued && !failed(); done = Atomics.load(control, 0)) {
+      Atomics.wait(control, 0, done, 1000)
+    }
+    if (!failed()) {
+      const message: WorkerRequest = { type: 'rows', text: batch.strings.join('\u0000'), numbers: batch.numbers.buffer as ArrayBuffer, count: batch.count }
+      worker.postMessage(message, [batch.numbers.buffer as ArrayBuffer])
+      sent++
+    }
+    batch = new LabRowBatch()
+  }
+  return {
+    runId: first.runId,
+    get failed() {
+      return failed()
+    },
+    add(row, values, supersedes) {
+      if (failed()) return
+      batch.add(row, values, supersedes)
+      queued++
+      if (batch.full) send()
+    },
+    async finish(counts) {
+      try {
+        if (queued === 0) counts = null // nothing to write: no import run either
+        if (counts) send()
+        endRead() // before the commit, so that its checkpoint can run to the end
+        worker.postMessage({ type: 'finish', counts } satisfies WorkerRequest)
+        const answer = await next()
+        if (answer.type === 'committed') return { runId: answer.runId, count: answer.count, replaced: answer.replaced }
+        if (answer.type === 'failed') throw errorOf(answer.failure)
+        return null
+      } finally {
+        endRead()
+        await exited
+      }
+    },
+  }
+}
