@@ -157,6 +157,9 @@ export interface PlanField {
   loads?: number | null
   warnings?: unknown[] | null
   factors?: Record<string, unknown> | null
+  /** ids of the plan's `sources` this field's numbers used */
+  source_ids?: string[] | null
+  /** plans stored before sources were listed once per plan: the full entries, in every field */
   sources?: unknown[] | null
   residual_n?: unknown
   [key: string]: unknown
@@ -165,6 +168,8 @@ export interface PlanField {
 export interface PlanResult {
   storages?: PlanStorage[]
   fields?: PlanField[]
+  /** every source the fields cite, once (read with computePlanSources, which also reads older plans) */
+  sources?: unknown[] | null
   [key: string]: unknown
 }
 

@@ -11,6 +11,7 @@ import {
   soilTestMethodValues,
   speciesValues,
   type ReferenceSet,
+  type ReferenceSource,
   type Species,
 } from './reference-sets/reference-set.ts'
 import { findBookValues } from './reference-sets/registry.ts'
@@ -173,7 +174,10 @@ export interface PlanStorageResult {
   warnings: Warning[]
 }
 
-/** One field of a plan: its labels, then computeRate's result for its case, unchanged. */
+/**
+ * One field of a plan: its labels, then computeRate's result for its case, unchanged except that
+ * the cited sources are named by id (`source_ids`); the plan lists each source once, in `sources`.
+ */
 export type PlanFieldResult = {
   field: string
   name: string | null
@@ -186,7 +190,7 @@ export type PlanFieldResult = {
   basis: PlanBasis
   /** residual N credited from earlier applications, lb/ac */
   credits: { manure_n: number; applications: number }
-} & Omit<RateResult, 'warnings'> & { warnings: Warning[] }
+} & Omit<RateResult, 'warnings' | 'sources'> & { source_ids: string[]; warnings: Warning[] }
 
 export interface PlanTotals {
   fields: number
@@ -213,6 +217,8 @@ export interface PlanBody {
   skipped: { field: string; reason: string }[]
   totals: PlanTotals
   warnings: Warning[]
+  /** the reference set's sources cited by any field, once each, in the set's order */
+  sources: ReferenceSource[]
 }
 
 /** What a plan was computed from, stored in plans.inputs: the snapshot and each field's case. */
@@ -503,6 +509,7 @@ export function computePlan(snapshot: FarmSnapshot, options: PlanOptions): PlanC
   const skipped: { field: string; reason: string }[] = []
   const inputFields: PlanInputs['fields'] = []
   const plannedBy = new Map<string, { area: number; rate: number; name: string }[]>()
+  const citedIds = new Set<string>()
 
   for (const f of snapshot.fields) {
     const residual: ResidualCredit[] = []
@@ -617,7 +624,9 @@ export function computePlan(snapshot: FarmSnapshot, options: PlanOptions): PlanC
     }
     const r = computeRate(parsed.value, { referenceSet: set })
     inputFields.push({ ...f, case: c, residual })
-    const { warnings: engineWarnings, ...numbers } = r
+    const { warnings: engineWarnings, sources, ...numbers } = r
+    const sourceIds = sources.map((x) => x.id)
+    for (const id of sourceIds) citedIds.add(id)
     fields.push({
       field: f.code,
       name: f.name,
@@ -630,6 +639,7 @@ export function computePlan(snapshot: FarmSnapshot, options: PlanOptions): PlanC
       basis,
       credits: { manure_n: round(manureN, 2), applications: residual.length },
       ...numbers,
+      source_ids: sourceIds,
       warnings: [...engineWarnings, ...fieldWarnings],
     })
     const list = plannedBy.get(storage.code) ?? []
@@ -712,6 +722,7 @@ export function computePlan(snapshot: FarmSnapshot, options: PlanOptions): PlanC
       skipped,
       totals,
       warnings: planWarnings,
+      sources: set.sources.filter((x) => citedIds.has(x.id)),
     },
     inputs: {
       farm: snapshot.farm.code,

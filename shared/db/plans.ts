@@ -244,8 +244,8 @@ export function planWriter(sqlite: SQLite.Database) {
     const stored = planJson(p.body, { version, createdAt: p.createdAt })
     // each field is serialized once: for its plan_fields row and, spliced in, for plans.result
     const details = p.body.fields.map((f) => JSON.stringify(f))
-    const { skipped, totals, warnings, fields: _fields, ...head } = stored
-    const result = `${JSON.stringify(head).slice(0, -1)},"fields":[${details.join(',')}],${JSON.stringify({ skipped, totals, warnings }).slice(1)}`
+    const { skipped, totals, warnings, sources, fields: _fields, ...head } = stored
+    const result = `${JSON.stringify(head).slice(0, -1)},"fields":[${details.join(',')}],${JSON.stringify({ skipped, totals, warnings, sources }).slice(1)}`
     const id = Number(
       insertPlan.run(p.farm.farmId, p.body.season, version, p.body.reference_set, p.body.reference_set_version, p.body.basis, p.body.as_of, JSON.stringify(p.inputs), result, p.createdBy, p.createdAt)
         .lastInsertRowid,
