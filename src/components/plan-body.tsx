@@ -1,5 +1,7 @@
 import { useEffect, useState, type ReactNode } from 'react'
+import { flushSync } from 'react-dom'
 import type { PlanField, PlanStorage, PlanView } from '../../shared/api-types.ts'
+import { computePlanSources } from '../../shared/plan-sources.ts'
 import { Cautions } from './cautions.tsx'
 import { BudgetBar, SupplyChart, useNarrow } from './charts.tsx'
 import { amountUnit, date, dateTime, fmt, label, loadsOf, num, nutrients, rateDigits, warningText } from './format.ts'
@@ -57,14 +59,15 @@ function storageTitle(g: StorageGroup): string {
   return g.code ? `${g.code}${g.name ? ` · ${g.name}` : ''}` : 'No storage named'
 }
 
+/** Supplied / need in one cell: bold supplied when it falls short of the need. */
 function SuppliedNeed({ f, k }: { f: PlanField; k: (typeof nutrients)[number] }) {
   const supplied = num(f.supplied?.[k])
   const need = num(f.need?.[k])
   const short = supplied !== null && need !== null && supplied + 0.5 < need
   return (
-    <td className="num">
-      <span className={short ? 'font-semibold' : undefined}>{fmt(supplied)}</span>
-      <span className="text-muted"> / {fmt(need)}</span>
+    <td className={short ? 'num font-semibold [&>span]:font-normal' : 'num'}>
+      {fmt(supplied)}
+      <span className="text-muted">{` / ${fmt(need)}`}</span>
     </td>
   )
 }
@@ -206,11 +209,22 @@ function ClosedUntilOpened({ summary, children }: { summary: string; children: R
   )
 }
 
-function Factors({ fields }: { fields: PlanField[] }) {
-  const withFactors = fields.filter((f) => (f.factors && Object.keys(f.factors).length) || (f.sources && f.sources.length))
-  if (withFactors.length === 0) return <p className="text-sm text-muted">This plan does not list the factors it used.</p>
+function Factors({ plan, fields }: { plan: PlanView; fields: PlanField[] }) {
+  const { sources, byField } = computePlanSources(plan.result)
+  const withFactors = fields.filter((f) => (f.factors && Object.keys(f.factors).length) || byField.get(f.field)?.length)
+  if (withFactors.length === 0 && sources.length === 0) return <p className="text-sm text-muted">This plan does not list the factors it used.</p>
   return (
     <div className="space-y-2">
+      {sources.length > 0 && (
+        <div className="rounded-md border border-line bg-surface p-3">
+          <h3 className="text-sm font-semibold">Sources cited in this plan</h3>
+          <ul className="mt-1 list-disc pl-5 text-sm">
+            {sources.map((s, i) => (
+              <li key={i}>{sourceText(s)}</li>
+            ))}
+          </ul>
+        </div>
+      )}
       {withFactors.map((f) => (
         <ClosedUntilOpened key={f.field} summary={`${f.field} · ${label(f.method)}`}>
           {f.factors && (
@@ -233,11 +247,11 @@ function Factors({ fields }: { fields: PlanField[] }) {
               Phosphorus budget: this application covers <span className="num">{fmt((f.p_budget as { seasons_covered?: unknown }).seasons_covered)}</span> season(s) of crop removal.
             </p>
           )}
-          {f.sources && f.sources.length > 0 && (
+          {(byField.get(f.field)?.length ?? 0) > 0 && (
             <>
               <h4 className="mt-3 text-sm font-semibold">Sources</h4>
               <ul className="list-disc pl-5 text-sm">
-                {f.sources.map((s, i) => (
+                {byField.get(f.field)!.map((s, i) => (
                   <li key={i}>{sourceText(s)}</li>
                 ))}
               </ul>
@@ -425,6 +439,38 @@ function PrintSheet({ plan, groups, fieldNames }: { plan: PlanView; groups: Stor
 }
 
 /**
+ * Whether to build the applicator sheet (1,000-odd hidden elements for a 200-field plan): not for
+ * the first paint, but once the page is idle after it, so that every way of printing finds it
+ * (printing to PDF does not announce itself). A print before that builds it at once: `beforeprint`
+ * comes before the print layout and the sheet is rendered synchronously inside it; a print media
+ * query that starts to match (print emulation, some previews) builds it too.
+ */
+function usePrintSheet(painted: boolean): boolean {
+  const [wanted, setWanted] = useState(() => typeof window !== 'undefined' && window.matchMedia?.('print').matches === true)
+  useEffect(() => {
+    if (wanted) return
+    const print = window.matchMedia('print')
+    const now = () => flushSync(() => setWanted(true))
+    const onChange = (e: MediaQueryListEvent) => e.matches && now()
+    window.addEventListener('beforeprint', now)
+    print.addEventListener('change', onChange)
+    let idle: number | undefined
+    let timer: ReturnType<typeof setTimeout> | undefined
+    if (painted) {
+      if (typeof window.requestIdleCallback === 'function') idle = window.requestIdleCallback(() => setWanted(true), { timeout: 2000 })
+      else timer = setTimeout(() => setWanted(true), 300)
+    }
+    return () => {
+      window.removeEventListener('beforeprint', now)
+      print.removeEventListener('change', onChange)
+      if (idle !== undefined) window.cancelIdleCallback(idle)
+      clearTimeout(timer)
+    }
+  }, [wanted, painted])
+  return wanted
+}
+
+/**
  * False for a plan's first render, true from the frame after it has been painted: the totals, the
  * cautions and the field rates show first, the chart, notes, sandbox and factors a frame later.
  */
@@ -447,13 +493,14 @@ function useAfterFirstPaint(): boolean {
 export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: ReactNode; versions?: ReactNode }) {
   const narrow = useNarrow()
   const painted = useAfterFirstPaint()
+  const printing = usePrintSheet(painted)
   const groups = groupByStorage(plan)
   const fields = plan.result.fields ?? []
   const fieldNames = new Map(plan.fields.map((f) => [f.code, f.name]))
   for (const f of fields) if (typeof f.name === 'string' && f.name) fieldNames.set(f.field, f.name)
   return (
     <div className="space-y-8">
-      <PrintSheet plan={plan} groups={groups} fieldNames={fieldNames} />
+      {printing && <PrintSheet plan={plan} groups={groups} fieldNames={fieldNames} />}
       <dl className="no-print grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
         <div><dt className="text-muted">Computed</dt><dd>{dateTime(plan.created_at)}</dd></div>
         <div><dt className="text-muted">By</dt><dd className="break-all">{plan.created_by}</dd></div>
@@ -508,7 +555,7 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
 
           <section aria-labelledby="factors-title" className="no-print">
             <h2 id="factors-title" className="mb-3 text-xl font-semibold">Factors and sources</h2>
-            <Factors fields={fields} />
+            <Factors plan={plan} fields={fields} />
           </section>
         </>
       )}

@@ -1,3 +1,4 @@
+import Database from 'better-sqlite3'
 import { mkdirSync } from 'node:fs'
 import { join } from 'node:path'
 import { fileURLToPath } from 'node:url'
@@ -143,7 +144,9 @@ describe('the viewer in a browser', () => {
     await page.goto(`${server.url}/plans/${demo.planId}`)
     await page.getByRole('heading', { name: 'Field rates' }).waitFor()
     await page.emulateMedia({ media: 'print' })
+    await page.getByRole('heading', { name: /application sheet/ }).waitFor()
     expect(await page.getByRole('heading', { name: /application sheet/ }).isVisible()).toBe(true)
+    expect(await page.locator('table.sheet tbody tr').count()).toBe(await page.locator('section[aria-labelledby="rates-title"] table tbody tr').count())
     expect(await page.getByRole('heading', { name: 'Field rates' }).isVisible()).toBe(false)
     expect(await page.locator('#cautions-title').isVisible()).toBe(true)
     expect(await page.locator('#cautions-top-title').isVisible()).toBe(false)
@@ -156,6 +159,83 @@ describe('the viewer in a browser', () => {
     }
     const pdf = await page.pdf({ format: 'A4', margin: { top: '12mm', bottom: '12mm', left: '12mm', right: '12mm' } })
     expect(pdf.subarray(0, 5).toString()).toBe('%PDF-')
+    await page.close()
+  })
+
+  it('builds the applicator sheet once the page is idle after its first paint, and at once for a print that comes earlier', async () => {
+    const page = await freshPage()
+    await signIn(page, demo.advisor)
+    await page.getByRole('heading', { name: 'Farms', level: 1 }).waitFor()
+    await page.goto(`${server.url}/plans/${demo.planId}`)
+    await page.getByRole('heading', { name: 'Field rates' }).waitFor()
+    const rates = page.locator('section[aria-labelledby="rates-title"] table tbody tr')
+    // built without any print, so that printing to PDF (which announces nothing) has it too
+    await page.locator('table.sheet').first().waitFor({ state: 'attached' })
+    expect(await page.locator('table.sheet tbody tr').count()).toBe(await rates.count())
+    expect(await page.getByRole('heading', { name: /application sheet/ }).isVisible()).toBe(false)
+    const pdf = await page.pdf({ format: 'Letter' })
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-')
+    await page.close()
+
+    // a page whose idle time never comes: the sheet waits for the print, then is there for its layout
+    const busy = await freshPage()
+    await busy.addInitScript(() => {
+      window.requestIdleCallback = () => 0
+    })
+    await signIn(busy, demo.advisor)
+    await busy.getByRole('heading', { name: 'Farms', level: 1 }).waitFor()
+    await busy.goto(`${server.url}/plans/${demo.planId}`)
+    await busy.getByRole('heading', { name: 'Factors and sources' }).waitFor()
+    // window.print() (what Ctrl+P and the print button do) returns with the sheet already in the page
+    const printed = await busy.evaluate(() => {
+      const before = document.querySelectorAll('table.sheet tbody tr').length
+      window.print()
+      return { before, after: document.querySelectorAll('table.sheet tbody tr').length }
+    })
+    const fields = await busy.locator('section[aria-labelledby="rates-title"] table tbody tr').count()
+    expect(printed).toEqual({ before: 0, after: fields })
+    await busy.close()
+  })
+
+  it('lists the cited sources once, and shows an older plan that repeats them in every field the same way', async () => {
+    // an older stored plan: the same plan with the full sources in every field instead of their ids
+    const sqlite = new Database(demo.dbFile)
+    let oldId: number
+    try {
+      const row = sqlite.prepare('select * from plans where id = ?').get(demo.planId) as Record<string, unknown>
+      const result = JSON.parse(String(row.result))
+      const byId = new Map(result.sources.map((s: { id: string }) => [s.id, s]))
+      const { sources: _listed, ...rest } = result
+      const older = { ...rest, fields: result.fields.map(({ source_ids, ...f }: { source_ids: string[] }) => ({ ...f, sources: source_ids.map((id) => byId.get(id)) })) }
+      const version = (sqlite.prepare('select max(version) + 1 as v from plans where farm_id = ? and season = ?').get(row.farm_id, row.season) as { v: number }).v
+      oldId = Number(
+        sqlite
+          .prepare('insert into plans (farm_id, season, version, reference_set, reference_set_version, basis, as_of, inputs, result, created_by, created_at) values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)')
+          .run(row.farm_id, row.season, version, row.reference_set, row.reference_set_version, row.basis, row.as_of, row.inputs, JSON.stringify(older), row.created_by, row.created_at).lastInsertRowid,
+      )
+    } finally {
+      sqlite.close()
+    }
+    const page = await freshPage()
+    await signIn(page, demo.advisor)
+    await page.getByRole('heading', { name: 'Farms', level: 1 }).waitFor()
+    const seen: Record<string, { listed: string[]; firstField: string[] }> = {}
+    for (const [name, id] of [['current', demo.planId], ['older', oldId]] as const) {
+      await page.goto(`${server.url}/plans/${id}`)
+      const factors = page.getByRole('region', { name: 'Factors and sources' })
+      await factors.getByRole('heading', { name: 'Sources cited in this plan' }).waitFor()
+      const listed = await factors.locator('h3:text("Sources cited in this plan") + ul > li').allTextContents()
+      await factors.locator('summary').first().click()
+      await factors.getByRole('heading', { name: 'Sources', exact: true }).first().waitFor()
+      const firstField = await factors.locator('details[open] h4 + ul > li').allTextContents()
+      seen[name] = { listed, firstField }
+      if (name === 'current') await factors.screenshot({ path: join(artifacts, 'plan-sources.png') })
+    }
+    expect(seen.current!.listed.length).toBeGreaterThan(0)
+    expect(new Set(seen.current!.listed).size).toBe(seen.current!.listed.length)
+    expect(seen.current!.firstField.length).toBeGreaterThan(0)
+    for (const s of seen.current!.firstField) expect(seen.current!.listed).toContain(s)
+    expect(seen.older).toEqual(seen.current)
     await page.close()
   })
 })

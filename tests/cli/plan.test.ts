@@ -137,10 +137,40 @@ describe('pitside plan', () => {
         const calc = await runCli(['--json', 'calc', 'rate', '--input', '-'], { input: JSON.stringify(c) })
         expect(calc.exitCode, String(calc.stderr)).toBe(0)
         const expected = JSON.parse(String(calc.stdout))
-        const { warnings, ...numbers } = expected
+        const { warnings, sources, ...numbers } = expected
         expect(field).toMatchObject(numbers)
         expect(field.warnings).toEqual(expect.arrayContaining(warnings))
+        // the field names its sources by id; the plan lists each one once, in full
+        expect(field.source_ids).toEqual(sources.map((s: any) => s.id))
+        expect(field.source_ids.map((id: string) => plan.sources.find((s: any) => s.id === id))).toEqual(sources)
       }
+    }
+  })
+
+  it('lists each cited source once per plan and names the ones each field used by id', async () => {
+    const db = copyOfDemo()
+    const { plans } = await planJson(db, ['--farm', 'QBF'])
+    const plan = plans[0]
+    const ids = plan.sources.map((s: any) => s.id)
+    expect(new Set(ids).size).toBe(ids.length)
+    expect(plan.sources.length).toBeGreaterThan(0)
+    for (const s of plan.sources) expect(s).toMatchObject({ id: expect.any(String), title: expect.any(String), publisher: expect.any(String) })
+    const cited = new Set<string>()
+    for (const f of plan.fields) {
+      expect(f).not.toHaveProperty('sources')
+      expect(f.source_ids.length).toBeGreaterThan(0)
+      for (const id of f.source_ids) {
+        expect(ids, `${f.field} cites ${id}`).toContain(id)
+        cited.add(id)
+      }
+    }
+    // nothing listed that no field cites
+    expect([...cited].sort()).toEqual([...ids].sort())
+    // the per-field detail of plan_fields names them by id too
+    for (const r of query<{ detail: string }>(db, 'select detail from plan_fields where plan_id = ?', plan.id)) {
+      const detail = JSON.parse(r.detail)
+      expect(detail).not.toHaveProperty('sources')
+      expect(detail.source_ids.length).toBeGreaterThan(0)
     }
   })
 
