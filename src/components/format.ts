@@ -14,10 +14,35 @@ export function num(value: unknown): number | null {
   return typeof value === 'number' && Number.isFinite(value) ? value : null
 }
 
-/** A figure with grouping and fixed decimals; a dash when missing. */
+/** Adds one unit in the last place of a string of decimal digits ("0999" → "1000"). */
+function incremented(digits: string): string {
+  let i = digits.length - 1
+  while (i >= 0 && digits[i] === '9') i--
+  if (i < 0) return '1' + '0'.repeat(digits.length)
+  return digits.slice(0, i) + String(Number(digits[i]) + 1) + '0'.repeat(digits.length - i - 1)
+}
+
+/**
+ * A figure with grouping and fixed decimals, exactly as Intl.NumberFormat('en-US') writes it: the
+ * shortest decimal that reads back as the number, rounded half away from zero (1,234.5; 1.005 →
+ * 1.01; -0 for a negative that rounds to zero); a dash when missing. A plan page writes some 3,000
+ * figures, and Intl's first use and each call cost more than doing this on the digits.
+ */
 export function fmt(value: unknown, digits = 0): string {
   const n = num(value)
-  return n === null ? '—' : formatter(digits).format(n)
+  if (n === null) return '—'
+  const abs = Math.abs(n)
+  if (abs >= 1e21 || (abs < 1e-6 && abs !== 0) || !Number.isInteger(digits) || digits < 0 || digits > 20) return formatter(digits).format(n)
+  const text = String(abs)
+  const dot = text.indexOf('.')
+  const whole = dot < 0 ? text : text.slice(0, dot)
+  const fraction = dot < 0 ? '' : text.slice(dot + 1)
+  let kept = whole + fraction.slice(0, digits).padEnd(digits, '0')
+  if (fraction.length > digits && fraction.charCodeAt(digits) >= 53) kept = incremented(kept)
+  const intLength = kept.length - digits
+  let grouped = kept.slice(0, intLength % 3 || 3)
+  for (let k = intLength % 3 || 3; k < intLength; k += 3) grouped += ',' + kept.slice(k, k + 3)
+  return (n < 0 || Object.is(n, -0) ? '-' : '') + grouped + (digits > 0 ? '.' + kept.slice(intLength) : '')
 }
 
 /** Decimals that suit a rate unit: whole gallons, tenths of tons. */
