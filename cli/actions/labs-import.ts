@@ -165,9 +165,15 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
     return summary
   }
 
+  // the writer (a worker thread with its own connection) starts while the text is decoded
+  const starting = startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null })
+  starting.catch(() => undefined) // awaited below; an early failure must not go unhandled meanwhile
   const decoded = decodeText(input.bytes)
   input = undefined // the bytes are not needed any more: let a big file's buffer go before the rows are read
-  if (decoded.problem) return refuse([decoded.problem], 'not a UTF-8 text file')
+  if (decoded.problem) {
+    await starting.then((w) => w.finish(null)).catch(() => undefined)
+    return refuse([decoded.problem], 'not a UTF-8 text file')
+  }
 
   // One pass: each row is parsed, resolved, checked and sorted into new / unchanged / replacing,
   // and the new ones go to the file's open transaction (written by a worker thread while the
@@ -175,7 +181,7 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   // row has passed; one error anywhere rolls the whole file back.
   let writer: LabFileWriter
   try {
-    writer = await startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null })
+    writer = await starting
   } catch (error) {
     throw writeFailure(error, name)
   }

@@ -1,7 +1,7 @@
 import SQLite from 'better-sqlite3'
 import { parentPort, workerData } from 'node:worker_threads'
 import { isAppError } from '../errors.ts'
-import { beginLabFileWrite, LabRowWriteError, rowStrings, type LabFileMeta, type LabFileWrite } from './lab-write.ts'
+import { beginLabFileWrite, LabRowWriteError, type LabFileMeta, type LabFileWrite } from './lab-write.ts'
 import type { WorkerReply, WorkerRequest, WriteFailure } from './lab-writer.ts'
 
 /**
@@ -41,9 +41,7 @@ function onMessage(m: WorkerRequest) {
   if (m.type === 'rows') {
     if (!failure && write) {
       try {
-        const strings = m.text.split('\u0000')
-        if (strings.length !== m.count * rowStrings) throw new Error(`a batch of ${m.count} rows arrived with ${strings.length} strings`)
-        write.insert(strings, new Float64Array(m.numbers), m.count)
+        write.insert(m.words, m.text.split('\u0000'), new Float64Array(m.numbers), m.count)
       } catch (error) {
         fail(error)
       }

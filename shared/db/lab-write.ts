@@ -13,23 +13,52 @@ import type { LabResultValues } from '../lab-results.ts'
  * runs it in this thread or in a worker (shared/db/lab-write-worker.ts) beside the parser.
  */
 
-/** The strings of one row, in this order. */
-export const rowStrings = 13
-const S_REPORT = 0, S_SAMPLE = 1, S_DATE = 2, S_FORM = 3, S_SPECIES = 4, S_BASIS = 5, S_UNITS = 6, S_REPORTED = 7
-const S_QUALIFIERS = 8, S_PER_UNIT = 9, S_NOTES = 10, S_WARNINGS = 11, S_LAB = 12
-/** The numbers of one row, in this order (NaN: null). */
-export const rowNumbers = 13
+/**
+ * The numbers of one row, in this order (NaN: null). Values that repeat from row to row (report
+ * number, date, form, species, basis, units, lab) travel as indexes into the file's word list,
+ * which grows by the batch's new words; the rest of the row's strings travel as strings.
+ */
+export const rowNumbers = 21
 const N_STORAGE = 0, N_EVENT = 1, N_LINE = 2, N_DM = 3, N_TOTAL_N = 4, N_NH4 = 5, N_ORG_N = 6, N_P2O5 = 7, N_K2O = 8
-const N_SULFUR = 9, N_PH = 10, N_SUPERSEDES = 11, N_FLAGS = 12
-const F_QUALIFIERS = 1, F_NOTES = 2, F_WARNINGS = 4, F_LAB = 8
+const N_SULFUR = 9, N_PH = 10, N_SUPERSEDES = 11, N_FLAGS = 12, N_REPORT = 13, N_DATE = 14, N_FORM = 15, N_SPECIES = 16
+const N_BASIS = 17, N_UNITS = 18, N_PER_UNIT = 19, N_LAB = 20
+/** Which of a row's optional strings follow its sample code and reported cells (in this order). */
+const F_QUALIFIERS = 1, F_NOTES = 2, F_WARNINGS = 4
 
 /** Rows per batch: big enough that a batch costs little to hand over, small enough to keep memory flat. */
 export const batchRows = 4096
 
+/** The words (repeated strings) of one file, numbered in the order they first appear. */
+export class LabWordList {
+  private readonly ids = new Map<string, number>()
+  /** words numbered since the last `take` */
+  private fresh: string[] = []
+
+  id(word: string): number {
+    let id = this.ids.get(word)
+    if (id === undefined) {
+      id = this.ids.size
+      this.ids.set(word, id)
+      this.fresh.push(word)
+    }
+    return id
+  }
+
+  /** The words numbered since the last call, to send with a batch. */
+  take(): string[] {
+    const out = this.fresh
+    this.fresh = []
+    return out
+  }
+}
+
 export class LabRowBatch {
+  /** per row: sample code, reported cells, then the optional strings its flags name */
   strings: string[] = []
   numbers = new Float64Array(batchRows * rowNumbers)
   count = 0
+
+  constructor(private readonly words: LabWordList) {}
 
   get full(): boolean {
     return this.count === batchRows
@@ -39,10 +68,21 @@ export class LabRowBatch {
   add(row: LabRow, v: LabResultValues, supersedes: number | null): void {
     const s = this.strings
     // the lab's cells as written, without those String(value) gives back (shared/lab-reported.ts)
-    const reported = storedAsReported(v.form, row.units, row.basis) ? row.reportedOdd : row.reported
-    const warnings = v.warnings ? JSON.stringify(v.warnings) : ''
-    s.push(row.reportId, row.sampleId, row.sampledOn, v.form, v.species, row.basis, row.units, reported,
-      row.qualifiers ?? '', v.perUnit, row.notes ?? '', warnings, row.lab ?? '')
+    s.push(row.sampleId, storedAsReported(v.form, row.units, row.basis) ? row.reportedOdd : row.reported)
+    let flags = 0
+    if (row.qualifiers !== null) {
+      s.push(row.qualifiers)
+      flags |= F_QUALIFIERS
+    }
+    if (row.notes !== null) {
+      s.push(row.notes)
+      flags |= F_NOTES
+    }
+    if (v.warnings) {
+      s.push(JSON.stringify(v.warnings))
+      flags |= F_WARNINGS
+    }
+    const w = this.words
     const n = this.numbers
     const o = this.count * rowNumbers
     n[o + N_STORAGE] = v.storageId
@@ -57,10 +97,17 @@ export class LabRowBatch {
     n[o + N_SULFUR] = v.sulfur ?? NaN
     n[o + N_PH] = row.ph ?? NaN
     n[o + N_SUPERSEDES] = supersedes ?? NaN
-    n[o + N_FLAGS] = (row.qualifiers !== null ? F_QUALIFIERS : 0) | (row.notes !== null ? F_NOTES : 0) | (v.warnings ? F_WARNINGS : 0) | (row.lab !== null ? F_LAB : 0)
+    n[o + N_FLAGS] = flags
+    n[o + N_REPORT] = w.id(row.reportId)
+    n[o + N_DATE] = w.id(row.sampledOn)
+    n[o + N_FORM] = w.id(v.form)
+    n[o + N_SPECIES] = w.id(v.species)
+    n[o + N_BASIS] = w.id(row.basis)
+    n[o + N_UNITS] = w.id(row.units)
+    n[o + N_PER_UNIT] = w.id(v.perUnit)
+    n[o + N_LAB] = row.lab === null ? NaN : w.id(row.lab)
     this.count++
   }
-
 }
 
 export interface LabFileMeta {
@@ -95,8 +142,8 @@ export interface LabFileWrite {
   /** results added so far */
   readonly count: number
   readonly replaced: number
-  /** Inserts a batch's rows (strings as an array). Throws LabRowWriteError naming the row. */
-  insert(strings: readonly string[], numbers: Float64Array, count: number): void
+  /** Inserts a batch's rows, after adding the batch's new words. Throws LabRowWriteError naming the row. */
+  insert(newWords: readonly string[], strings: readonly string[], numbers: Float64Array, count: number): void
   /** Checks the foreign keys, records the counts and commits; returns the import run id. */
   commit(counts: LabFileCounts): number
   /** Rolls the file back (nothing of it stays) and restores the connection's settings. */
@@ -114,12 +161,6 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta): L
   const insertRun = sqlite.prepare(`insert into import_runs (kind, file_name, sha256, outcome, message) values ('labs', ?, ?, 'imported', ?)`)
   const finishRun = sqlite.prepare(`update import_runs set rows = ?, rows_new = ?, rows_unchanged = ?, warnings = ?, outcome = ? where id = ?`)
   const insertReport = sqlite.prepare(`insert into lab_reports (lab, report_number, source_file, source_sha256, import_run_id) values (?, ?, ?, ?, ?)`)
-  const insertResult = sqlite.prepare(
-    `insert into lab_results (lab_report_id, storage_id, sampling_event_id, report_number, sample_code, sampled_on, line,
-       form, species, basis, units, reported, qualifiers, per_unit, dry_matter_pct, total_n, ammonium_n, organic_n,
-       p2o5, k2o, sulfur, ph, notes, warnings, import_run_id)
-     values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-  )
   const supersede = sqlite.prepare(`update lab_results set superseded_by = ? where id = ?`)
   const storageExists = sqlite.prepare(`select 1 from storages where id = ?`).pluck()
   const eventExists = sqlite.prepare(`select 1 from sampling_events where id = ?`).pluck()
@@ -142,10 +183,34 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta): L
     close()
     throw error
   }
-  const reports = new Map<string, number>()
+
+  // One insert statement per combination of the values that repeat (form, species, basis, units):
+  // they and the import run are written into its SQL as literals, so each row binds 19 values, not 25.
+  const literal = (text: string) => `'${text.replace(/'/g, "''")}'`
+  const inserts = new Map<string, SQLite.Statement>()
+  const insertFor = (form: string, species: string, basis: string, units: string, perUnit: string) => {
+    const key = form + '\u0000' + species + '\u0000' + basis + '\u0000' + units + '\u0000' + perUnit
+    let statement = inserts.get(key)
+    if (!statement) {
+      statement = sqlite.prepare(
+        `insert into lab_results (lab_report_id, storage_id, sampling_event_id, report_number, sample_code, sampled_on, line,
+           reported, qualifiers, dry_matter_pct, total_n, ammonium_n, organic_n, p2o5, k2o, sulfur, ph, notes, warnings,
+           form, species, basis, units, per_unit, import_run_id)
+         values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?,
+           ${literal(form)}, ${literal(species)}, ${literal(basis)}, ${literal(units)}, ${literal(perUnit)}, ${runId})`,
+      )
+      inserts.set(key, statement)
+    }
+    return statement
+  }
+  const params: unknown[] = new Array(19)
+  const words: string[] = []
+  const reports = new Map<number, number>() // word of the report number → lab report id
   const storages = new Set<number>()
   const events = new Set<number>()
   let lastStorage = -1
+  const lastWords = [-1, -1, -1, -1, -1] // form, species, basis, units, per unit of the statement in use
+  let insert: SQLite.Statement | null = null
   let count = 0
   let replaced = 0
 
@@ -157,17 +222,20 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta): L
     get replaced() {
       return replaced
     },
-    insert(s, n, rows) {
+    insert(newWords, s, n, rows) {
+      for (const w of newWords) words.push(w)
+      let k = 0
       for (let i = 0; i < rows; i++) {
-        const b = i * rowStrings
         const o = i * rowNumbers
         const flags = n[o + N_FLAGS]!
         try {
-          const reportNumber = s[b + S_REPORT]!
-          let reportId = reports.get(reportNumber)
+          const reportWord = n[o + N_REPORT]!
+          const reportNumber = words[reportWord]!
+          let reportId = reports.get(reportWord)
           if (reportId === undefined) {
-            reportId = Number(insertReport.run(flags & F_LAB ? s[b + S_LAB] : null, reportNumber, meta.fileName, meta.sha256, runId).lastInsertRowid)
-            reports.set(reportNumber, reportId)
+            const lab = n[o + N_LAB]!
+            reportId = Number(insertReport.run(lab !== lab ? null : words[lab], reportNumber, meta.fileName, meta.sha256, runId).lastInsertRowid)
+            reports.set(reportWord, reportId)
           }
           const storageId = n[o + N_STORAGE]!
           if (storageId !== lastStorage) {
@@ -176,14 +244,35 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta): L
           }
           const eventId = num(n[o + N_EVENT]!)
           if (eventId !== null) events.add(eventId)
-          const { lastInsertRowid } = insertResult.run(
-            reportId, storageId, eventId, reportNumber, s[b + S_SAMPLE], s[b + S_DATE], n[o + N_LINE],
-            s[b + S_FORM], s[b + S_SPECIES], s[b + S_BASIS], s[b + S_UNITS], s[b + S_REPORTED],
-            flags & F_QUALIFIERS ? s[b + S_QUALIFIERS] : null, s[b + S_PER_UNIT],
-            num(n[o + N_DM]!), n[o + N_TOTAL_N], num(n[o + N_NH4]!), num(n[o + N_ORG_N]!), num(n[o + N_P2O5]!),
-            num(n[o + N_K2O]!), num(n[o + N_SULFUR]!), num(n[o + N_PH]!),
-            flags & F_NOTES ? s[b + S_NOTES] : null, flags & F_WARNINGS ? s[b + S_WARNINGS] : null, runId,
-          )
+          const form = n[o + N_FORM]!, species = n[o + N_SPECIES]!, basis = n[o + N_BASIS]!, units = n[o + N_UNITS]!, perUnit = n[o + N_PER_UNIT]!
+          if (!insert || form !== lastWords[0] || species !== lastWords[1] || basis !== lastWords[2] || units !== lastWords[3] || perUnit !== lastWords[4]) {
+            insert = insertFor(words[form]!, words[species]!, words[basis]!, words[units]!, words[perUnit]!)
+            lastWords[0] = form
+            lastWords[1] = species
+            lastWords[2] = basis
+            lastWords[3] = units
+            lastWords[4] = perUnit
+          }
+          params[0] = reportId
+          params[1] = storageId
+          params[2] = eventId
+          params[3] = reportNumber
+          params[4] = s[k++]
+          params[5] = words[n[o + N_DATE]!]
+          params[6] = n[o + N_LINE]
+          params[7] = s[k++]
+          params[8] = flags & F_QUALIFIERS ? s[k++] : null
+          params[9] = num(n[o + N_DM]!)
+          params[10] = n[o + N_TOTAL_N]
+          params[11] = num(n[o + N_NH4]!)
+          params[12] = num(n[o + N_ORG_N]!)
+          params[13] = num(n[o + N_P2O5]!)
+          params[14] = num(n[o + N_K2O]!)
+          params[15] = num(n[o + N_SULFUR]!)
+          params[16] = num(n[o + N_PH]!)
+          params[17] = flags & F_NOTES ? s[k++] : null
+          params[18] = flags & F_WARNINGS ? s[k++] : null
+          const { lastInsertRowid } = insert.run(params)
           const supersedes = num(n[o + N_SUPERSEDES]!)
           if (supersedes !== null) {
             supersede.run(lastInsertRowid, supersedes)
@@ -194,6 +283,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta): L
           throw new LabRowWriteError(n[o + N_LINE]!, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
         }
       }
+      if (k !== s.length) throw new Error(`a batch of ${rows} rows came with ${s.length} strings, ${k} of them read`)
     },
     commit(counts) {
       try {

@@ -5,7 +5,7 @@ import { Worker } from 'node:worker_threads'
 import { AppError, type ErrorCode } from '../errors.ts'
 import type { LabRow } from '../lab-csv.ts'
 import type { LabResultValues } from '../lab-results.ts'
-import { beginLabFileWrite, LabRowBatch, LabRowWriteError, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
+import { beginLabFileWrite, LabRowBatch, LabRowWriteError, LabWordList, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
 
 /**
  * Writes one lab file while it is being read. With a database file and the compiled program, the
@@ -40,7 +40,7 @@ export type WriteFailure =
   | { kind: 'other'; code: string | null; message: string }
 
 export type WorkerRequest =
-  | { type: 'rows'; text: string; numbers: ArrayBuffer; count: number }
+  | { type: 'rows'; words: string[]; text: string; numbers: ArrayBuffer; count: number }
   | { type: 'finish'; counts: LabFileCounts | null }
 
 export type WorkerReply =
@@ -51,7 +51,7 @@ export type WorkerReply =
 
 const workerFile = fileURLToPath(new URL('./lab-write-worker.js', import.meta.url))
 /** Batches the parser may run ahead of the writer (memory: about 1 MB each). */
-const maxQueued = Number(process.env.PITSIDE_Q ?? 8)
+const maxQueued = 8
 const busyTimeoutMs = 5000
 
 function errorOf(f: WriteFailure): Error {
@@ -74,17 +74,17 @@ export async function startLabFileWriter(sqlite: SQLite.Database, meta: LabFileM
 
 function startInThread(sqlite: SQLite.Database, meta: LabFileMeta): LabFileWriter {
   const write = beginLabFileWrite(sqlite, meta)
-  let batch = new LabRowBatch()
+  const words = new LabWordList()
+  let batch = new LabRowBatch(words)
   let failure: unknown = null
   const flush = () => {
     if (batch.count === 0 || failure) return
     try {
-      write.insert(batch.strings, batch.numbers, batch.count)
+      write.insert(words.take(), batch.strings, batch.numbers, batch.count)
     } catch (error) {
       failure = error
     }
-    batch.strings = []
-    batch.count = 0
+    batch = new LabRowBatch(words)
   }
   return {
     runId: write.runId,
@@ -158,7 +158,8 @@ async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta): Promise<
   const endRead = () => {
     if (sqlite.inTransaction) sqlite.exec('commit')
   }
-  let batch = new LabRowBatch()
+  const words = new LabWordList()
+  let batch = new LabRowBatch(words)
   let sent = 0
   let queued = 0
   const failed = () => Atomics.load(control, 1) === 1
@@ -169,11 +170,11 @@ async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta): Promise<
       Atomics.wait(control, 0, done, 1000)
     }
     if (!failed()) {
-      const message: WorkerRequest = { type: 'rows', text: batch.strings.join('\u0000'), numbers: batch.numbers.buffer as ArrayBuffer, count: batch.count }
+      const message: WorkerRequest = { type: 'rows', words: words.take(), text: batch.strings.join('\u0000'), numbers: batch.numbers.buffer as ArrayBuffer, count: batch.count }
       worker.postMessage(message, [batch.numbers.buffer as ArrayBuffer])
       sent++
     }
-    batch = new LabRowBatch()
+    batch = new LabRowBatch(words)
   }
   return {
     runId: first.runId,
