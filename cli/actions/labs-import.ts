@@ -166,7 +166,7 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   }
 
   // the writer (a worker thread with its own connection) starts while the text is decoded
-  const starting = startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null })
+  const starting = startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null, bytes: input.bytes.length })
   starting.catch(() => undefined) // awaited below; an early failure must not go unhandled meanwhile
   const decoded = decodeText(input.bytes)
   input = undefined // the bytes are not needed any more: let a big file's buffer go before the rows are read

@@ -77,7 +77,7 @@ try {
   sqlite.pragma('journal_mode = WAL')
   sqlite.pragma('synchronous = NORMAL')
   sqlite.pragma('foreign_keys = ON')
-  write = beginLabFileWrite(sqlite, meta)
+  write = beginLabFileWrite(sqlite, meta, { mayRebuildIndexes: true })
   reply({ type: 'ready', runId: write.runId })
 } catch (error) {
   fail(error)

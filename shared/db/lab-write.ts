@@ -114,6 +114,19 @@ export interface LabFileMeta {
   fileName: string
   sha256: string
   message: string | null
+  /** the file's size: decides whether the indexes are rebuilt after the rows (see beginLabFileWrite) */
+  bytes?: number
+}
+
+/**
+ * A big file into a table that holds fewer results than the file brings: inserting into the
+ * table alone and then building its indexes in one sorted pass costs less than keeping the indexes
+ * up to date row by row (random inserts into two B-trees). A result row is 100–200 bytes in a
+ * lab file, so bytes / 200 is a low estimate of the file's rows. Only for a connection that does not
+ * read lab_results during the import (the writer thread): without its indexes the table is scanned.
+ */
+export function rebuildsIndexes(bytes: number, storedResults: number): boolean {
+  return bytes >= 4 * 1024 * 1024 && bytes / 200 >= storedResults
 }
 
 export interface LabFileCounts {
@@ -157,7 +170,7 @@ export interface LabFileWrite {
  * writer can remove a storage while the lock is held, and the import run and lab reports are rows
  * of this same transaction.
  */
-export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta): LabFileWrite {
+export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, options: { mayRebuildIndexes?: boolean } = {}): LabFileWrite {
   const insertRun = sqlite.prepare(`insert into import_runs (kind, file_name, sha256, outcome, message) values ('labs', ?, ?, 'imported', ?)`)
   const finishRun = sqlite.prepare(`update import_runs set rows = ?, rows_new = ?, rows_unchanged = ?, warnings = ?, outcome = ? where id = ?`)
   const insertReport = sqlite.prepare(`insert into lab_reports (lab, report_number, source_file, source_sha256, import_run_id) values (?, ?, ?, ?, ?)`)
@@ -182,6 +195,22 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta): L
   } catch (error) {
     close()
     throw error
+  }
+  // the indexes to build again before the commit (inside the transaction: a failure or a crash
+  // rolls their removal back with the rows)
+  let indexes: string[] = []
+  if (options.mayRebuildIndexes && meta.bytes !== undefined) {
+    const stored = (sqlite.prepare('select max(id) from lab_results').pluck().get() as number | null) ?? 0
+    if (rebuildsIndexes(meta.bytes, stored)) {
+      const found = sqlite.prepare(`select name, sql from sqlite_master where type = 'index' and tbl_name = 'lab_results' and sql is not null`).all() as { name: string; sql: string }[]
+      try {
+        for (const ix of found) sqlite.exec(`drop index "${ix.name.replace(/"/g, '""')}"`)
+      } catch (error) {
+        close()
+        throw error
+      }
+      indexes = found.map((ix) => ix.sql)
+    }
   }
 
   // One insert statement per combination of the values that repeat (form, species, basis, units):
@@ -294,6 +323,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta): L
           if (!eventExists.get(id)) throw new AppError('conflict', `sampling event ${id} was removed while the lab file was being imported; nothing was written`)
         }
         finishRun.run(counts.rows, count, counts.unchanged, counts.warnings, replaced > 0 ? 'replaced' : 'imported', runId)
+        for (const sql of indexes) sqlite.exec(sql)
         sqlite.exec('commit')
         open = false
         return runId

@@ -1,0 +1,80 @@
+// The lab import's writer thread (shared/db/lab-writer.ts): the results it stores are the ones the
+// import's own thread stores, row for row; a big file into a small table has its indexes built
+// again after the rows, inside the file's transaction, so a failure at the last row leaves the
+// database as it was, indexes included (SQLite's atomic commit: sqlite.org/atomiccommit.html).
+import SQLite from 'better-sqlite3'
+import { copyFileSync, statSync } from 'node:fs'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { rebuildsIndexes } from '../../shared/db/lab-write.ts'
+import { runCli } from '../helpers/cli.ts'
+import { makeTempDir, type TempDir } from '../helpers/temp-db.ts'
+import { checkFile, dumpDatabase } from './helpers/dump.ts'
+import { makeFarmDatabase } from './helpers/lab-db.ts'
+import { writeLabFile } from './helpers/lab-files.ts'
+
+let tmp: TempDir
+let template: string
+let big: string
+const bigRows = 36_000 // about 5 MB: more than rebuildsIndexes' threshold
+beforeAll(async () => {
+  tmp = makeTempDir('pitside-lab-writer-')
+  template = tmp.path('template.db')
+  await makeFarmDatabase(template)
+  big = tmp.path('big.csv')
+  writeLabFile(big, 'CRA-26-BIG', bigRows)
+}, 60_000)
+afterAll(() => tmp?.cleanup())
+
+/** Everything an import stores, without the clock's timestamps. */
+function stored(db: string) {
+  const s = new SQLite(db, { readonly: true })
+  try {
+    const cols = (t: string) => (s.prepare(`select name from pragma_table_info(?)`).pluck().all(t) as string[]).filter((c) => c !== 'created_at')
+    const rows = (t: string) => s.prepare(`select ${cols(t).join(', ')} from ${t} order by id`).raw().all()
+    return {
+      schema: s.prepare(`select type, name, sql from sqlite_master where sql is not null order by name`).all(),
+      lab_results: rows('lab_results'),
+      lab_reports: rows('lab_reports'),
+      import_runs: rows('import_runs'),
+    }
+  } finally {
+    s.close()
+  }
+}
+
+describe('the lab writer thread', () => {
+  it('stores exactly what the import thread stores, for a big file whose indexes are built again after the rows', async () => {
+    expect(rebuildsIndexes(statSync(big).size, 0)).toBe(true)
+    const inWorker = tmp.path('worker.db')
+    const inThread = tmp.path('thread.db')
+    copyFileSync(template, inWorker)
+    copyFileSync(template, inThread)
+    const a = await runCli(['--db', inWorker, '-q', '--json', 'labs', 'import', big])
+    const b = await runCli(['--db', inThread, '-q', '--json', 'labs', 'import', big], { env: { PITSIDE_LAB_WRITER: 'thread' } })
+    expect(a.exitCode, String(a.stderr)).toBe(0)
+    expect(b.exitCode, String(b.stderr)).toBe(0)
+    expect(JSON.parse(String(a.stdout)).totals).toEqual(JSON.parse(String(b.stdout)).totals)
+    const sa = stored(inWorker)
+    expect(sa.lab_results).toHaveLength(bigRows)
+    expect(sa).toEqual(stored(inThread))
+    expect(sa.schema.map((o: any) => o.name)).toEqual(expect.arrayContaining(['lab_results_report_sample_idx', 'lab_results_storage_idx']))
+    expect(checkFile(inWorker)).toEqual({ integrity: 'ok', foreignKeys: [] })
+  }, 120_000)
+
+  it('leaves the database as it was, indexes included, when the last row of a big file fails to write', async () => {
+    const db = tmp.path('fails.db')
+    copyFileSync(template, db)
+    const s = new SQLite(db)
+    s.exec(`create trigger fail_last before insert on lab_results when new.sample_code = 'CRA-26-BIG-S${bigRows}'
+      begin select raise(abort, 'simulated write failure at the last row'); end;`)
+    s.close()
+    const before = dumpDatabase(db)
+    const r = await runCli(['--db', db, 'labs', 'import', big])
+    expect(r.exitCode).not.toBe(0)
+    expect(r.stderr).toContain(`${big}:${bigRows + 1}: `)
+    expect(r.stderr).toMatch(/simulated write failure/)
+    expect(r.stderr).toMatch(/nothing .*was written/)
+    expect(dumpDatabase(db)).toBe(before)
+    expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
+  }, 120_000)
+})
