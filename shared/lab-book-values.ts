@@ -1,5 +1,5 @@
 import type { LabStorage } from './lab-results.ts'
-import { speciesValues, type Species } from './reference-sets/reference-set.ts'
+import { speciesValues, type Species } from './reference-sets/reference-values.ts'
 import { defaultReferenceSetName, findBookValues, findReferenceSet, type BookValues } from './reference-sets/registry.ts'
 
 /**

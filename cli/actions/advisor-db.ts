@@ -1,32 +1,14 @@
-import { existsSync } from 'node:fs'
-import { migrationNames } from '../../shared/db/migrations.ts'
-import { openReader, openWriter, type OpenDatabase } from '../../shared/db/open-database.ts'
+import { wrapDatabase, type OpenDatabase } from '../../shared/db/open-database.ts'
 import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
-import { AppError } from '../../shared/errors.ts'
+import { openAdvisorSqlite } from './advisor-sqlite.ts'
 
 /**
- * Opens the database for the advisor commands (labs, plan, plans, export, records) and checks that
- * `pitside init` has created its tables, so that a wrong `--db` path gets a clear message instead
- * of an empty new file and an SQL error.
+ * Opens the database for the advisor commands (plan, plans, export, records, record imports) with
+ * Kysely over the raw connection, after advisor-sqlite.ts's checks (exists, has Pitside's tables
+ * at the latest schema).
  */
 export function openAdvisorDb(file: string, mode: 'write' | 'read' = 'write'): OpenDatabase {
-  if (!existsSync(file)) {
-    throw new AppError('database', `database ${file} does not exist: run \`pitside --db ${file} init\` first (or give the right --db)`)
-  }
-  const opened = mode === 'write' ? openWriter(file) : openReader(file)
-  const hasTables = opened.sqlite.prepare(`select 1 from sqlite_master where type = 'table' and name = 'kysely_migration'`).get()
-  const applied = new Set(
-    hasTables ? (opened.sqlite.prepare('select name from kysely_migration').all() as { name: string }[]).map((r) => r.name) : [],
-  )
-  if (applied.size === 0) {
-    opened.sqlite.close()
-    throw new AppError('database', `${file} has no Pitside tables: run \`pitside --db ${file} init\` first (or give the right --db)`)
-  }
-  if (!migrationNames.every((n) => applied.has(n))) {
-    opened.sqlite.close()
-    throw new AppError('database', `database ${file} is not at the latest schema: run \`pitside --db ${file} init\``)
-  }
-  return opened
+  return wrapDatabase(file, openAdvisorSqlite(file, mode))
 }
 
 /**

@@ -1,5 +1,4 @@
 import type SQLite from 'better-sqlite3'
-import type { Kysely } from 'kysely'
 import { readFile } from 'node:fs/promises'
 import {
   currentLabResultsReader,
@@ -11,21 +10,19 @@ import {
 } from '../../shared/db/labs.ts'
 import { LabRowWriteError } from '../../shared/db/lab-write.ts'
 import { startLabFileWriter, type LabFileWriter } from '../../shared/db/lab-writer.ts'
-import type { Database } from '../../shared/db/schema.ts'
 import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
 import { decodeText } from '../../shared/decode-text.ts'
 import { AppError, formatProblems, isAppError, type ErrorCode, type Problem } from '../../shared/errors.ts'
 import { readLabCsv, type LabRow } from '../../shared/lab-csv.ts'
-import { parseLabProfile, type LabProfile } from '../../shared/lab-profile.ts'
+import type { LabProfile } from '../../shared/lab-profile.ts'
 import { checkLabRow, emptyLabResultValues, type LabCheckContext, type LabResultValues } from '../../shared/lab-results.ts'
 import { bookValuesForStorage } from '../../shared/lab-book-values.ts'
 import type { ActionModule } from '../lazy.ts'
 import { note, printJson, printTable } from '../output.ts'
 import { readInput } from '../read-input.ts'
-import { withAdvisorDb } from './advisor-db.ts'
+import { withAdvisorSqlite } from './advisor-sqlite.ts'
 
 export interface LabImportDeps {
-  db: Kysely<Database>
   sqlite: SQLite.Database
 }
 
@@ -304,6 +301,7 @@ export async function readLabProfile(path: string): Promise<LabProfile> {
     const code = (error as NodeJS.ErrnoException).code
     throw new AppError(code === 'ENOENT' ? 'not_found' : 'io', `${path}: cannot read the profile (${code ?? (error as Error).message})`)
   }
+  const { parseLabProfile } = await import('../../shared/lab-profile.ts') // its schema loads zod: only when asked for
   const { profile, problems } = parseLabProfile(text)
   if (!profile) throw new AppError('invalid_input', formatProblems(problems, path))
   return profile
@@ -354,8 +352,8 @@ export const run: ActionModule['run'] = async ({ args, options, globals: g }) =>
 
   const showBar = process.stderr.isTTY && !g.quiet && files.length > 1
   const bar = showBar ? await makeBar(files.length) : null
-  const summary = await withAdvisorDb(g.db, 'write', ({ db, sqlite }) =>
-    importLabFiles({ db, sqlite }, files, {
+  const summary = await withAdvisorSqlite(g.db, 'write', (sqlite) =>
+    importLabFiles({ sqlite }, files, {
       replace: Boolean(options.replace),
       profile,
       ...(options.reference ? { referenceSet: options.reference } : {}),

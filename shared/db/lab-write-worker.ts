@@ -1,6 +1,7 @@
-import SQLite from 'better-sqlite3'
+import type SQLite from 'better-sqlite3'
 import { parentPort, workerData } from 'node:worker_threads'
 import { isAppError } from '../errors.ts'
+import { openWriterSqlite } from './open-sqlite.ts'
 import { beginLabFileWrite, LabRowWriteError, type LabFileMeta, type LabFileWrite } from './lab-write.ts'
 import type { WorkerReply, WorkerRequest, WriteFailure } from './lab-writer.ts'
 
@@ -10,7 +11,7 @@ import type { WorkerReply, WorkerRequest, WriteFailure } from './lab-writer.ts'
  * Each batch done is counted in `control[0]` so that the parser never runs far ahead; the first
  * failure sets `control[1]`, later batches are dropped and the failure is the answer to `finish`.
  */
-const { file, meta, control: controlBuffer, busyTimeoutMs } = workerData as { file: string; meta: LabFileMeta; control: SharedArrayBuffer; busyTimeoutMs: number }
+const { file, meta, control: controlBuffer } = workerData as { file: string; meta: LabFileMeta; control: SharedArrayBuffer }
 const control = new Int32Array(controlBuffer)
 const port = parentPort!
 const reply = (m: WorkerReply) => port.postMessage(m)
@@ -72,11 +73,7 @@ function onMessage(m: WorkerRequest) {
 
 port.on('message', onMessage)
 try {
-  sqlite = new SQLite(file, { fileMustExist: true })
-  sqlite.pragma(`busy_timeout = ${busyTimeoutMs}`)
-  sqlite.pragma('journal_mode = WAL')
-  sqlite.pragma('synchronous = NORMAL')
-  sqlite.pragma('foreign_keys = ON')
+  sqlite = openWriterSqlite(file)
   write = beginLabFileWrite(sqlite, meta, { mayRebuildIndexes: true })
   reply({ type: 'ready', runId: write.runId })
 } catch (error) {

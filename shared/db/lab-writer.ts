@@ -8,12 +8,12 @@ import type { LabResultValues } from '../lab-results.ts'
 import { beginLabFileWrite, LabRowBatch, LabRowWriteError, LabWordList, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
 
 /**
- * Writes one lab file while it is being read. With a database file and the compiled program, the
+ * Writes one lab file while it is being read. For a big file (see labWriterUsesWorker), the
  * inserts run in a worker thread on its own connection (shared/db/lab-write-worker.ts), so that
  * SQLite writes one batch while this thread parses and checks the next: on two cores the import
- * takes about as long as the longer of the two instead of their sum. Otherwise (an in-memory
- * database, the TypeScript sources under the test runner, or PITSIDE_LAB_WRITER=thread) the same
- * batches are written in this thread. Either way: one transaction, committed only by `finish`
+ * takes about as long as the longer of the two instead of their sum. Otherwise (a small file, an
+ * in-memory database, the TypeScript sources under the test runner) the same batches are written
+ * in this thread. Either way: one transaction, committed only by `finish`
  * with the file's counts; `finish(null)` or any failure leaves nothing of the file.
  *
  * While a worker writes, this thread's own connection only reads, and sees the database as it was
@@ -52,7 +52,6 @@ export type WorkerReply =
 const workerFile = fileURLToPath(new URL('./lab-write-worker.js', import.meta.url))
 /** Batches the parser may run ahead of the writer (memory: about 1 MB each). */
 const maxQueued = 8
-const busyTimeoutMs = 5000
 
 function errorOf(f: WriteFailure): Error {
   if (f.kind === 'row') return new LabRowWriteError(f.line, f.code ?? undefined, f.message)
@@ -60,16 +59,24 @@ function errorOf(f: WriteFailure): Error {
   return Object.assign(new Error(f.message), f.code ? { code: f.code } : {})
 }
 
-/** True when this file's results will be written by a worker thread. */
-export function labWriterUsesWorker(sqlite: SQLite.Database): boolean {
+/** Files from this size on are written by a worker thread; below it, starting one costs more than it saves. */
+export const workerFromBytes = 1024 * 1024
+
+/**
+ * True when this file's results will be written by a worker thread: a database file, the compiled
+ * program and a file of workerFromBytes or more (PITSIDE_LAB_WRITER=thread|worker decides instead,
+ * for comparisons).
+ */
+export function labWriterUsesWorker(sqlite: SQLite.Database, bytes: number | undefined): boolean {
   const mode = process.env.PITSIDE_LAB_WRITER
   if (mode === 'thread') return false
-  return !sqlite.memory && sqlite.name !== '' && existsSync(sqlite.name) && existsSync(workerFile)
+  const possible = !sqlite.memory && sqlite.name !== '' && existsSync(sqlite.name) && existsSync(workerFile)
+  return possible && (mode === 'worker' || (bytes ?? 0) >= workerFromBytes)
 }
 
 /** Begins one lab file's transaction (see LabFileWriter). Throws what opening it throws (locked, disk). */
 export async function startLabFileWriter(sqlite: SQLite.Database, meta: LabFileMeta): Promise<LabFileWriter> {
-  return labWriterUsesWorker(sqlite) ? startWorker(sqlite, meta) : startInThread(sqlite, meta)
+  return labWriterUsesWorker(sqlite, meta.bytes) ? startWorker(sqlite, meta) : startInThread(sqlite, meta)
 }
 
 function startInThread(sqlite: SQLite.Database, meta: LabFileMeta): LabFileWriter {
@@ -114,7 +121,7 @@ async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta): Promise<
   const control = new Int32Array(new SharedArrayBuffer(8)) // [batches done, failed]
   // the writer only turns batches into inserts: a small heap keeps the import's memory flat
   const worker = new Worker(workerFile, {
-    workerData: { file, meta, control: control.buffer, busyTimeoutMs },
+    workerData: { file, meta, control: control.buffer },
     resourceLimits: { maxYoungGenerationSizeMb: 8, maxOldGenerationSizeMb: 96 },
   })
   const exited = new Promise<void>((resolve) => worker.once('exit', () => resolve()))

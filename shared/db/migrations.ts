@@ -1,10 +1,15 @@
 import { Migrator, type Migration, type MigrationProvider, type Kysely } from 'kysely'
 import * as createSchema from '../../migrations/2026_12_01_0900_create_schema.ts'
+import { migrationNames } from './migration-names.ts'
 
 // A static provider: Kysely's FileMigrationProvider reads the folder at run time, which fails under
 // vitest and in the compiled build. Add each new migration here, in order.
 const migrations: Record<string, Migration> = {
   '2026_12_01_0900_create_schema': createSchema,
+}
+
+if (Object.keys(migrations).join('\n') !== migrationNames.join('\n')) {
+  throw new Error('shared/db/migrations.ts and shared/db/migration-names.ts list different migrations')
 }
 
 const provider: MigrationProvider = { getMigrations: async () => migrations }
@@ -26,4 +31,4 @@ export async function migrateToLatest(db: Kysely<any>): Promise<MigrationOutcome
   }
 }
 
-export const migrationNames = Object.keys(migrations)
+export { migrationNames }

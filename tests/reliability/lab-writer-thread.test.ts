@@ -61,6 +61,25 @@ describe('the lab writer thread', () => {
     expect(checkFile(inWorker)).toEqual({ integrity: 'ok', foreignKeys: [] })
   }, 120_000)
 
+  it('names the line of the row whose insert failed in the writer thread, and writes nothing', async () => {
+    const db = tmp.path('row-37.db')
+    copyFileSync(template, db)
+    const s = new SQLite(db)
+    s.exec(`create trigger fail_37 before insert on lab_results when new.sample_code = 'CRA-26-K-S37'
+      begin select raise(abort, 'simulated write failure at row 37'); end;`)
+    s.close()
+    const file = tmp.path('small.csv')
+    writeLabFile(file, 'CRA-26-K', 200)
+    const before = dumpDatabase(db)
+    const r = await runCli(['--db', db, 'labs', 'import', file], { env: { PITSIDE_LAB_WRITER: 'worker' } })
+    expect(r.exitCode).not.toBe(0)
+    expect(r.stderr).toContain(`${file}:38: `) // row 37 is on line 38
+    expect(r.stderr).toMatch(/simulated write failure/)
+    expect(r.stderr).toMatch(/nothing .*was written/)
+    expect(r.stderr).not.toMatch(/\bat .*\.(js|ts):\d+/)
+    expect(dumpDatabase(db)).toBe(before)
+  }, 60_000)
+
   it('leaves the database as it was, indexes included, when the last row of a big file fails to write', async () => {
     const db = tmp.path('fails.db')
     copyFileSync(template, db)
