@@ -1,4 +1,4 @@
-import { useEffect, useState, type ReactNode } from 'react'
+import { useEffect, useLayoutEffect, useMemo, useRef, useState, type ReactNode } from 'react'
 import { flushSync } from 'react-dom'
 import type { PlanField, PlanStorage, PlanView } from '../../shared/api-types.ts'
 import { computePlanSources } from '../../shared/plan-sources.ts'
@@ -59,17 +59,57 @@ function storageTitle(g: StorageGroup): string {
   return g.code ? `${g.code}${g.name ? ` · ${g.name}` : ''}` : 'No storage named'
 }
 
+/** An element with a class and children, for the rows built without React (FieldRows). */
+function el(tag: string, className: string | null, ...children: (Node | string)[]): HTMLElement {
+  const e = document.createElement(tag)
+  if (className) e.className = className
+  e.append(...children)
+  return e
+}
+
 /** Supplied / need in one cell: bold supplied when it falls short of the need. */
-function SuppliedNeed({ f, k }: { f: PlanField; k: (typeof nutrients)[number] }) {
+function suppliedNeedCell(f: PlanField, k: (typeof nutrients)[number]): HTMLElement {
   const supplied = num(f.supplied?.[k])
   const need = num(f.need?.[k])
   const short = supplied !== null && need !== null && supplied + 0.5 < need
-  return (
-    <td className={short ? 'num font-semibold [&>span]:font-normal' : 'num'}>
-      {fmt(supplied)}
-      <span className="text-muted">{` / ${fmt(need)}`}</span>
-    </td>
+  return el('td', short ? 'num font-semibold [&>span]:font-normal' : 'num', fmt(supplied), el('span', 'text-muted', ` / ${fmt(need)}`))
+}
+
+/** One field's row of a rate table: the field with its name and warnings, then its figures. */
+function fieldRow(f: PlanField, g: StorageGroup, fieldNames: Map<string, string | null>): HTMLElement {
+  const th = el('th', 'sticky left-0 bg-surface text-left font-semibold', f.field)
+  th.setAttribute('scope', 'row')
+  const name = fieldNames.get(f.field)
+  if (name) th.append(el('span', 'block text-xs font-normal text-muted', name))
+  const warnings = (f.warnings ?? []).map(warningText)
+  if (warnings.length > 0) th.append(el('ul', 'mt-1 max-w-[14rem] text-xs font-normal text-danger', ...warnings.map((w) => el('li', null, `⚠ ${w}`))))
+  return el(
+    'tr',
+    null,
+    th,
+    el('td', 'num', fmt(f.acres, 1)),
+    el('td', null, label(f.crop)),
+    el('td', null, label(f.method)),
+    el('td', 'num font-semibold', fmt(f.rate, rateDigits(g.rateUnit))),
+    el('td', null, label(f.limited_by)),
+    ...nutrients.map((k) => suppliedNeedCell(f, k)),
+    el('td', 'num', nutrients.map((k) => fmt(f.supplemental?.[k])).join('–')),
+    el('td', 'num', fmt(f.total_manure)),
+    el('td', 'num', fmt(loadsOf(f.loads))),
   )
+}
+
+/**
+ * The body of a rate table, built with DOM calls before the first paint instead of as React
+ * elements: a 200-field plan's rows hold some 8,000 elements and text nodes, and React's work for
+ * each cost more than creating them. The rows change only with the plan.
+ */
+function FieldRows({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
+  const body = useRef<HTMLTableSectionElement>(null)
+  useLayoutEffect(() => {
+    body.current!.replaceChildren(...g.fields.map((f) => fieldRow(f, g, fieldNames)))
+  }, [g, fieldNames])
+  return <tbody ref={body} />
 }
 
 /** The same rows as cards, for a phone at the field edge. */
@@ -115,7 +155,6 @@ function FieldCards({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string
 }
 
 function FieldTable({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
-  const rd = rateDigits(g.rateUnit)
   return (
     <div className="overflow-x-auto rounded-md border border-line bg-surface" tabIndex={0} role="region" aria-label={`Field rates from ${g.code}`}>
       <table className="data min-w-[56rem]">
@@ -136,37 +175,7 @@ function FieldTable({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string
             <th scope="col" className="num">Loads<span className="unit">count</span></th>
           </tr>
         </thead>
-        <tbody>
-          {g.fields.map((f) => {
-            const warnings = (f.warnings ?? []).map(warningText)
-            return (
-              <tr key={f.field}>
-                <th scope="row" className="sticky left-0 bg-surface text-left font-semibold">
-                  {f.field}
-                  {fieldNames.get(f.field) && <span className="block text-xs font-normal text-muted">{fieldNames.get(f.field)}</span>}
-                  {warnings.length > 0 && (
-                    <ul className="mt-1 max-w-[14rem] text-xs font-normal text-danger">
-                      {warnings.map((w) => (
-                        <li key={w}>⚠ {w}</li>
-                      ))}
-                    </ul>
-                  )}
-                </th>
-                <td className="num">{fmt(f.acres, 1)}</td>
-                <td>{label(f.crop)}</td>
-                <td>{label(f.method)}</td>
-                <td className="num font-semibold">{fmt(f.rate, rd)}</td>
-                <td>{label(f.limited_by)}</td>
-                {nutrients.map((k) => (
-                  <SuppliedNeed key={k} f={f} k={k} />
-                ))}
-                <td className="num">{nutrients.map((k) => fmt(f.supplemental?.[k])).join('–')}</td>
-                <td className="num">{fmt(f.total_manure)}</td>
-                <td className="num">{fmt(loadsOf(f.loads))}</td>
-              </tr>
-            )
-          })}
-        </tbody>
+        <FieldRows g={g} fieldNames={fieldNames} />
       </table>
     </div>
   )
@@ -494,10 +503,14 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
   const narrow = useNarrow()
   const painted = useAfterFirstPaint()
   const printing = usePrintSheet(painted)
-  const groups = groupByStorage(plan)
+  // the same objects across the page's renders, so that the rate rows are built once per plan
+  const groups = useMemo(() => groupByStorage(plan), [plan])
   const fields = plan.result.fields ?? []
-  const fieldNames = new Map(plan.fields.map((f) => [f.code, f.name]))
-  for (const f of fields) if (typeof f.name === 'string' && f.name) fieldNames.set(f.field, f.name)
+  const fieldNames = useMemo(() => {
+    const names = new Map(plan.fields.map((f) => [f.code, f.name]))
+    for (const f of plan.result.fields ?? []) if (typeof f.name === 'string' && f.name) names.set(f.field, f.name)
+    return names
+  }, [plan])
   return (
     <div className="space-y-8">
       {printing && <PrintSheet plan={plan} groups={groups} fieldNames={fieldNames} />}

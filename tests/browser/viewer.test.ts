@@ -71,11 +71,20 @@ describe('the viewer in a browser', () => {
 
     // the sandbox recomputes the planned field with the same engine, then another rate
     const planId = Number(/\/plans\/(\d+)/.exec(page.url())![1])
-    const stored = await page.evaluate(async (id) => (await (await fetch(`/api/plans/${id}`)).json()).result.fields[0], planId)
+    const storedFields = await page.evaluate(async (id) => (await (await fetch(`/api/plans/${id}`)).json()).result.fields, planId)
+    const stored = storedFields[0]
+    // one row per planned field, its figures as stored
+    const rateRows = page.locator('section[aria-labelledby="rates-title"] table tbody tr')
+    expect(await rateRows.count()).toBe(storedFields.length)
+    const rateCell = await page.evaluate((code) => {
+      const rows = [...document.querySelectorAll('section[aria-labelledby="rates-title"] tbody tr')] as HTMLTableRowElement[]
+      return rows.find((r) => r.cells[0]!.firstChild!.textContent === code)!.cells[4]!.textContent
+    }, stored.field)
+    const digits = String(stored.rate_unit).startsWith('ton') ? 1 : 0
+    expect(rateCell).toBe(stored.rate.toLocaleString('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits }))
     const sandbox = page.getByRole('region', { name: 'Try another rate' })
     await sandbox.getByText(/^At /).waitFor()
     const fmt = (x: number, d: number) => x.toLocaleString('en-US', { minimumFractionDigits: d, maximumFractionDigits: d })
-    const digits = String(stored.rate_unit).startsWith('ton') ? 1 : 0
     expect(await sandbox.getByText(/^At /).textContent()).toContain(`At ${fmt(stored.rate, digits)} ${stored.rate_unit}`)
     await sandbox.getByLabel(/^Rate/).fill('2500')
     await sandbox.getByText(`At ${fmt(2500, digits)} ${stored.rate_unit}`, { exact: false }).waitFor()
