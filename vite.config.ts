@@ -6,7 +6,8 @@ import { defineConfig } from 'vite'
 // which proxies /api to it.
 export default defineConfig({
   plugins: [react(), tailwindcss()],
-  build: { outDir: 'dist/web', emptyOutDir: true },
+  // the manifest tells `pitside serve` which chunks each page loads (server/static.ts: modulepreload)
+  build: { outDir: 'dist/web', emptyOutDir: true, manifest: true },
   server: {
     port: 5173,
     proxy: { '/api': `http://127.0.0.1:${process.env.PITSIDE_API_PORT ?? 8080}` },

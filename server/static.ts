@@ -24,21 +24,59 @@ interface Asset {
   gzip: Buffer | null
 }
 
+/** The code of each page beyond the entry script (its route chunk and the chunks that one imports), as /assets/ paths. */
+export type PageModules = Partial<Record<'plan' | 'farm' | 'farms', string[]>>
+
+const pageSources = { plan: 'src/routes/plan.tsx', farm: 'src/routes/farm.tsx', farms: 'src/routes/farms.tsx' } as const
+
 /**
- * The API answers a page asks for first, as a Link header: the browser fetches them while it loads
- * the page's code, and the page's own fetch then takes the answer instead of asking again. The
- * paths are the ones the client's route loaders prefetch (src/main.tsx).
+ * Each page's code from the build's manifest (`.vite/manifest.json`, written by `vite build`): the
+ * page's chunk and, transitively, the chunks it imports, without the entry script that index.html
+ * loads anyway. Empty when there is no manifest or it cannot be read (the pages still load their code).
  */
-export function pagePreloads(path: string): string | null {
+export function readPageModules(webDir: string): PageModules {
+  type Chunk = { file: string; isEntry?: boolean; imports?: string[] }
+  let manifest: Record<string, Chunk>
+  try {
+    manifest = JSON.parse(readFileSync(join(webDir, '.vite', 'manifest.json'), 'utf8')) as Record<string, Chunk>
+  } catch {
+    return {}
+  }
+  const out: PageModules = {}
+  for (const [page, source] of Object.entries(pageSources) as [keyof PageModules, string][]) {
+    if (!manifest[source]) continue
+    const files: string[] = []
+    const visit = (key: string) => {
+      const chunk = manifest[key]
+      if (!chunk || chunk.isEntry || files.includes(`/${chunk.file}`)) return
+      files.push(`/${chunk.file}`)
+      for (const i of chunk.imports ?? []) visit(i)
+    }
+    visit(source)
+    out[page] = files
+  }
+  return out
+}
+
+/**
+ * What a page asks for first, as a Link header: the API answers (rel=preload) and the page's own
+ * code (rel=modulepreload), so that the browser fetches them while it loads the entry script
+ * instead of one after the other; the page's own fetch and import then take what is already there.
+ * The API paths are the ones the client's route loaders prefetch (src/main.tsx).
+ */
+export function pagePreloads(path: string, modules: PageModules = {}): string | null {
   let urls: string[]
+  let page: keyof PageModules | null = null
   const plan = /^\/plans\/([1-9]\d{0,11})$/.exec(path)
   const farm = /^\/farms\/([A-Za-z0-9][A-Za-z0-9_.-]{0,39})$/.exec(path)
-  if (plan) urls = ['/api/session', `/api/plans/${plan[1]}`]
-  else if (farm) urls = ['/api/session', `/api/farms/${farm[1]}`]
-  else if (path === '/farms') urls = ['/api/session', '/api/farms']
+  if (plan) [urls, page] = [['/api/session', `/api/plans/${plan[1]}`], 'plan']
+  else if (farm) [urls, page] = [['/api/session', `/api/farms/${farm[1]}`], 'farm']
+  else if (path === '/farms') [urls, page] = [['/api/session', '/api/farms'], 'farms']
   else if (path === '/') urls = ['/api/session']
   else return null
-  return urls.map((u) => `<${u}>; rel=preload; as=fetch; crossorigin=anonymous`).join(', ')
+  const links = urls.map((u) => `<${u}>; rel=preload; as=fetch; crossorigin=anonymous`)
+  for (const file of page ? (modules[page] ?? []) : []) links.push(`<${file}>; rel=modulepreload`)
+  return links.join(', ')
 }
 
 const compressible = new Set(['.js', '.css', '.svg', '.json', '.html', '.map', '.txt'])
@@ -66,6 +104,7 @@ export function webRoutes(webDir: string | null): Router {
   }
   const index = readFileSync(join(webDir, 'index.html'))
   const assets = loadAssets(join(webDir, 'assets'))
+  const modules = readPageModules(webDir)
   // static files, like express.static: middleware rather than a route of the API
   router.use('/assets', (req, res, next) => {
     if (req.method !== 'GET' && req.method !== 'HEAD') return next()
@@ -84,7 +123,7 @@ export function webRoutes(webDir: string | null): Router {
     res.type('html').send(index)
   }
   const sendPage: express.RequestHandler = (req, res, next) => {
-    const preloads = pagePreloads(req.path)
+    const preloads = pagePreloads(req.path, modules)
     if (preloads) res.set('Link', preloads)
     sendIndex(req, res, next)
   }
