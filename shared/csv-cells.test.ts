@@ -1,6 +1,8 @@
+import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { normalizeHeader, parseDateCell, parseNumberCell } from './csv-cells.ts'
+import { isCanonicalDecimalAt, normalizeHeader, parseDateCell, parseNumberCell, readPlainDecimal } from './csv-cells.ts'
 import { parseCsv } from './csv.ts'
+import { canonicalDecimal } from './lab-reported.ts'
 
 describe('parseCsv', () => {
   it('reads quoted newlines, doubled quotes, CRLF, CR-only ends and a BOM, keeping start lines', () => {
@@ -79,5 +81,43 @@ describe('normalizeHeader', () => {
     expect(normalizeHeader('\ufeffReport-ID')).toEqual({ key: 'report_id', unit: null })
     expect(normalizeHeader(' Dry Matter % ')).toEqual({ key: 'dry_matter_pct', unit: null })
     expect(normalizeHeader('NH4-N [ppm]')).toEqual({ key: 'nh4_n', unit: 'ppm' })
+  })
+})
+
+describe('readPlainDecimal and isCanonicalDecimalAt', () => {
+  const plain = /^\d+(\.\d+)?$/
+  const decimalText = fc.oneof(
+    fc.stringMatching(/^\d{1,18}(\.\d{1,18})?$/),
+    fc.double({ min: 0, max: 1e9, noNaN: true }).map(String),
+    fc.tuple(fc.nat(999999), fc.nat(99999999)).map(([a, b]) => `${a}.${b}`),
+    fc.string({ unit: fc.constantFrom('0', '1', '5', '9', '.', 'e', '-', '+', ' ', ','), maxLength: 10 }),
+  )
+
+  it('reads a plain decimal in place as Number() reads it, and nothing else', () => {
+    fc.assert(
+      fc.property(decimalText, fc.nat(3), (text, pad) => {
+        const padded = 'x'.repeat(pad) + text + 'y'
+        const value = readPlainDecimal(padded, pad, pad + text.length)
+        if (plain.test(text)) expect(Object.is(value, Number(text))).toBe(true)
+        else expect(value).toBe(-1)
+      }),
+      { numRuns: 10000 },
+    )
+  })
+
+  it('reads long and awkward decimals exactly', () => {
+    for (const text of ['0', '0.0', '000', '028.71', '0.1', '0.30000000000000004', '123456789012345', '1234567890123456', '9007199254740993', '1.7976931348623157', '99999999999999999999.5']) {
+      expect(readPlainDecimal(text, 0, text.length)).toBe(Number(text))
+    }
+  })
+
+  it('tells canonical decimals as the stored-cells pattern does', () => {
+    fc.assert(
+      fc.property(decimalText, fc.nat(3), (text, pad) => {
+        const padded = '9'.repeat(pad) + text + '9'
+        expect(isCanonicalDecimalAt(padded, pad, pad + text.length)).toBe(canonicalDecimal.test(text))
+      }),
+      { numRuns: 10000 },
+    )
   })
 })

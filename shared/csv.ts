@@ -156,3 +156,328 @@ export function parseCsv(input: string, options: { delimiter?: string } = {}): C
   }
   return { records, lines, delimiter }
 }
+
+/**
+ * The same reader as parseCsv, one record at a time and without a string per cell: `next()` reads
+ * the next record (leaving out blank lines, as parseCsv does) and leaves its cells as offsets into
+ * the text, so that a caller slices only the cells it keeps and reads numbers from the characters.
+ * Records, lines and problems are exactly those of parseCsv (checked in shared/csv.test.ts).
+ * Pure; never throws.
+ */
+export class CsvCursor {
+  /** cells in the current record */
+  count = 0
+  /** start of each cell's text (inside the quotes for a quoted cell); -1 for a cell with doubled quotes, see `escaped` */
+  starts = new Int32Array(32)
+  /** end (exclusive) of each cell's text */
+  ends = new Int32Array(32)
+  /** the unquoted text of cells whose start is -1 */
+  escaped: string[] = []
+  /** 1-based line on which the current record starts */
+  line = 0
+  /** set when reading stopped at a malformed quote; the record it is in is not returned */
+  problem: Problem | undefined
+  readonly text: string
+  private readonly d: number
+  private pos: number
+  private nextLine = 1
+
+  constructor(text: string, delimiter: string) {
+    this.text = text
+    this.d = delimiter.charCodeAt(0)
+    this.pos = text.charCodeAt(0) === 0xfeff ? 1 : 0
+  }
+
+  /** Reads the next record; false at the end of the text or at a malformed quote (see `problem`). */
+  next(): boolean {
+    const text = this.text
+    const d = this.d
+    const n = text.length
+    let i = this.pos
+    let line = this.nextLine
+    while (i < n) {
+      const startLine = line
+      let count = 0
+      for (;;) {
+        if (count === this.starts.length) this.grow()
+        if (i < n && text.charCodeAt(i) === QUOTE) {
+          let value: string | null = null
+          let from = i + 1
+          let j = from
+          for (;;) {
+            const q = text.indexOf('"', j)
+            if (q === -1) {
+              return this.stop(n, line, {
+                code: 'csv_quote_not_closed',
+                line: startLine,
+                message: `a quoted cell opened on line ${startLine} is never closed (add the closing ")`,
+              })
+            }
+            for (let k = j; k < q; k++) {
+              const c = text.charCodeAt(k)
+              if (c === LF) line++
+              else if (c === CR && text.charCodeAt(k + 1) !== LF) line++
+            }
+            if (text.charCodeAt(q + 1) === QUOTE) {
+              value = (value ?? '') + text.slice(from, q + 1)
+              from = q + 2
+              j = from
+              continue
+            }
+            if (value === null) {
+              this.starts[count] = from
+              this.ends[count] = q
+            } else {
+              this.starts[count] = -1
+              this.ends[count] = -2
+              this.escaped[count] = value + text.slice(from, q)
+            }
+            count++
+            i = q + 1
+            break
+          }
+          const c = i < n ? text.charCodeAt(i) : -1
+          if (c === d) i++
+          else if (c === LF || c === CR || c === -1) break
+          else {
+            return this.stop(n, line, {
+              code: 'csv_text_after_quote',
+              line,
+              message: `unexpected text after a closing quote in cell ${count} (a quote inside a cell must be doubled: "")`,
+            })
+          }
+        } else {
+          let j = i
+          let c = -1
+          for (; j < n; j++) {
+            c = text.charCodeAt(j)
+            if (c === d || c === LF || c === CR) break
+            if (c === QUOTE) {
+              return this.stop(n, line, {
+                code: 'csv_stray_quote',
+                line,
+                message: `a quote inside unquoted cell ${count + 1} (quote the whole cell and double the quote: "")`,
+              })
+            }
+          }
+          this.starts[count] = i
+          this.ends[count] = j
+          count++
+          i = j
+          if (j < n && c === d) i++
+          else break
+        }
+      }
+      if (i < n) {
+        const c = text.charCodeAt(i)
+        if (c === CR) {
+          i += text.charCodeAt(i + 1) === LF ? 2 : 1
+          line++
+        } else if (c === LF) {
+          i++
+          line++
+        }
+      }
+      if (count !== 1 || this.starts[0] !== this.ends[0]) {
+        this.count = count
+        this.line = startLine
+        this.pos = i
+        this.nextLine = line
+        return true
+      }
+    }
+    this.count = 0
+    this.pos = i
+    this.nextLine = line
+    return false
+  }
+
+  /** The text of cell k as parseCsv gives it ('' past the last cell). */
+  cell(k: number): string {
+    if (k >= this.count) return ''
+    const s = this.starts[k]!
+    return s === -1 ? this.escaped[k]! : this.text.slice(s, this.ends[k])
+  }
+
+  /** The text of cell k trimmed as String.prototype.trim trims ('' past the last cell). */
+  trimmed(k: number): string {
+    if (k >= this.count) return ''
+    const s = this.starts[k]!
+    if (s === -1) return this.escaped[k]!.trim()
+    const e = this.ends[k]!
+    if (s === e) return ''
+    const text = this.text
+    const a = text.charCodeAt(s)
+    const b = text.charCodeAt(e - 1)
+    // printable ASCII at both ends: nothing to trim
+    if (a > 32 && a < 127 && b > 32 && b < 127) return text.slice(s, e)
+    return text.slice(s, e).trim()
+  }
+
+  /** Whether cell k, trimmed, is `value` (compared in place, without slicing the cell). */
+  is(k: number, value: string): boolean {
+    if (k >= this.count) return value === ''
+    const s = this.starts[k]!
+    if (s === -1) return this.escaped[k]!.trim() === value
+    const e = this.ends[k]!
+    const len = e - s
+    if (len === 0) return value === ''
+    const text = this.text
+    const a = text.charCodeAt(s)
+    const b = text.charCodeAt(e - 1)
+    if (!(a > 32 && a < 127 && b > 32 && b < 127)) return text.slice(s, e).trim() === value
+    if (len !== value.length) return false
+    for (let k2 = 0; k2 < len; k2++) if (text.charCodeAt(s + k2) !== value.charCodeAt(k2)) return false
+    return true
+  }
+
+  /** start of the trimmed text of the cell last given to `span` */
+  spanStart = 0
+  /** end (exclusive) of the trimmed text of the cell last given to `span` */
+  spanEnd = 0
+
+  /**
+   * Sets spanStart and spanEnd to where cell k's trimmed text lies in the text (an empty span past
+   * the last cell); false for a cell with doubled quotes, whose text is not a span of the text.
+   */
+  span(k: number): boolean {
+    if (k >= this.count) {
+      this.spanStart = this.spanEnd = 0
+      return true
+    }
+    let s = this.starts[k]!
+    if (s === -1) return false
+    let e = this.ends[k]!
+    if (s < e) {
+      const text = this.text
+      const a = text.charCodeAt(s)
+      const b = text.charCodeAt(e - 1)
+      if (!(a > 32 && a < 127 && b > 32 && b < 127)) {
+        const raw = text.slice(s, e)
+        const start = raw.trimStart()
+        if (start === '') e = s
+        else {
+          s += raw.length - start.length
+          e -= raw.length - raw.trimEnd().length
+        }
+      }
+    }
+    this.spanStart = s
+    this.spanEnd = e
+    return true
+  }
+
+  /** Whether cell k is empty once trimmed. */
+  blank(k: number): boolean {
+    if (k >= this.count) return true
+    const s = this.starts[k]!
+    if (s === -1) return this.escaped[k]!.trim() === ''
+    const e = this.ends[k]!
+    if (s === e) return true
+    const a = this.text.charCodeAt(s)
+    if (a > 32 && a < 127) return false
+    return this.text.slice(s, e).trim() === ''
+  }
+
+  private stop(n: number, line: number, problem: Problem): false {
+    this.problem = problem
+    this.count = 0
+    this.pos = n
+    this.nextLine = line
+    return false
+  }
+
+  private grow(): void {
+    const starts = new Int32Array(this.starts.length * 2)
+    const ends = new Int32Array(this.ends.length * 2)
+    starts.set(this.starts)
+    ends.set(this.ends)
+    this.starts = starts
+    this.ends = ends
+  }
+}
+
+/**
+ * A set of pairs of texts given as spans of one text (e.g. a report and a sample code), each with
+ * the line it was first seen on: a hash table in typed arrays, so that a file's 200,000 pairs cost
+ * no strings or objects that the garbage collector has to keep moving. Pure.
+ */
+export class SpanPairSet {
+  /** per slot: hash, start and end of both spans, line; line 0 marks an empty slot */
+  private slots: Int32Array
+  private mask: number
+  private size = 0
+
+  constructor(
+    private readonly text: string,
+    capacity = 1024,
+  ) {
+    let n = 16
+    while (n < capacity * 2) n *= 2
+    this.slots = new Int32Array(n * 6)
+    this.mask = n - 1
+  }
+
+  /**
+   * Adds the pair text[aStart, aEnd) + text[bStart, bEnd) seen on `line` (≥ 1) and returns 0, or
+   * returns the line on which the same pair of texts was added before (leaving it as it is).
+   */
+  add(aStart: number, aEnd: number, bStart: number, bEnd: number, line: number): number {
+    const h = this.hash(aStart, aEnd, bStart, bEnd)
+    const slots = this.slots
+    for (let i = h & this.mask; ; i = (i + 1) & this.mask) {
+      const o = i * 6
+      const seen = slots[o + 5]!
+      if (seen === 0) {
+        slots[o] = h
+        slots[o + 1] = aStart
+        slots[o + 2] = aEnd
+        slots[o + 3] = bStart
+        slots[o + 4] = bEnd
+        slots[o + 5] = line
+        if (++this.size * 2 > this.mask) this.grow()
+        return 0
+      }
+      if (
+        slots[o] === h &&
+        this.same(slots[o + 1]!, slots[o + 2]!, aStart, aEnd) &&
+        this.same(slots[o + 3]!, slots[o + 4]!, bStart, bEnd)
+      ) {
+        return seen
+      }
+    }
+  }
+
+  private hash(aStart: number, aEnd: number, bStart: number, bEnd: number): number {
+    const text = this.text
+    let h = 0x811c9dc5 | 0
+    for (let i = aStart; i < aEnd; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193)
+    h = Math.imul(h ^ 0xffff, 0x01000193) ^ (aEnd - aStart)
+    for (let i = bStart; i < bEnd; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193)
+    return h ^ (h >>> 15)
+  }
+
+  private same(s1: number, e1: number, s2: number, e2: number): boolean {
+    if (e1 - s1 !== e2 - s2) return false
+    const text = this.text
+    for (let i = 0; i < e1 - s1; i++) if (text.charCodeAt(s1 + i) !== text.charCodeAt(s2 + i)) return false
+    return true
+  }
+
+  private grow(): void {
+    const old = this.slots
+    const n = (this.mask + 1) * 2
+    this.slots = new Int32Array(n * 6)
+    this.mask = n - 1
+    for (let o = 0; o < old.length; o += 6) {
+      if (old[o + 5] === 0) continue
+      for (let i = old[o]! & this.mask; ; i = (i + 1) & this.mask) {
+        const p = i * 6
+        if (this.slots[p + 5] === 0) {
+          this.slots.set(old.subarray(o, o + 6), p)
+          break
+        }
+      }
+    }
+  }
+}

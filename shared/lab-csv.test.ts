@@ -18,6 +18,27 @@ describe('parseLabCsv', () => {
     expect(JSON.parse(r.rows[0]!.reported)).toEqual({ dry_matter_pct: '5.1', total_n: '48.2', ammonium_n: '33.0', p2o5: '26.4', k2o: '31.0' })
   })
 
+  it('gives every cell as written in reported, the odd ones in reportedOdd, while the row is passed and in a copy', () => {
+    const cells = ['5.1', ' 48.2 ', '<0.5', '026.4', '31.0']
+    const text = `${header}\n${row(1)}\n${row(2).replace('5.1,48.2,33.0,26.4,31.0', cells.join(','))}\n`
+    const during: string[] = []
+    const kept: { reported: string; reportedOdd: string }[] = []
+    readLabCsv(text, { today: '2026-01-01' }, (r) => {
+      during.push(r.reported, r.reported)
+      kept.push({ ...r })
+    })
+    const second = { dry_matter_pct: '5.1', total_n: '48.2', ammonium_n: '<0.5', p2o5: '026.4', k2o: '31.0' }
+    expect(during.map((x) => JSON.parse(x))).toEqual([
+      { dry_matter_pct: '5.1', total_n: '48.2', ammonium_n: '33.0', p2o5: '26.4', k2o: '31.0' },
+      { dry_matter_pct: '5.1', total_n: '48.2', ammonium_n: '33.0', p2o5: '26.4', k2o: '31.0' },
+      second,
+      second,
+    ])
+    expect(kept.map((r) => JSON.parse(r.reported))).toEqual([JSON.parse(during[0]!), second])
+    // a cell that String(value) writes back ("5.1", "48.2" once trimmed) is left out of reportedOdd
+    expect(kept.map((r) => JSON.parse(r.reportedOdd))).toEqual([{ ammonium_n: '33.0', k2o: '31.0' }, { ammonium_n: '<0.5', p2o5: '026.4', k2o: '31.0' }])
+  })
+
   it('keeps line numbers right in a file read in several runs, across quoted newlines and CRLF', () => {
     // long enough for several runs of the reader (256 KiB each); every 97th row carries a quoted newline
     const lines: string[] = [header]

@@ -1,7 +1,7 @@
 import type { AnalysisBasis, AnalysisUnits, ManureForm } from './analysis.ts'
-import { parseDateCell, parseNumberCell, type DecimalMark } from './csv-cells.ts'
+import { isCanonicalDecimalAt, parseDateCell, parseNumberCell, readPlainDecimal, type DecimalMark } from './csv-cells.ts'
 import { parseCsvTable, type ColumnSpec } from './csv-table.ts'
-import { parseCsv } from './csv.ts'
+import { CsvCursor, SpanPairSet } from './csv.ts'
 import type { Problem } from './errors.ts'
 import type { LabProfile } from './lab-profile.ts'
 import { canonicalDecimal, storedColumns } from './lab-reported.ts'
@@ -210,44 +210,47 @@ function blankLines(text: string, n: number): string {
 
 const plainNumber = /^\d+(\.\d+)?$/
 
-/** Text of roughly this many characters is read per call of the CSV reader, so that cells never pile up. */
-const chunkChars = 256 * 1024
+/** The header and the rows after it in about this many characters are read by parseCsvTable (which detects the decimal mark from them). */
+const headChars = 256 * 1024
 
 /**
- * Positions that split CSV text into runs of whole records: each cut lies just after a line feed
- * that is outside quotes (an even number of quotes before it). Linear in the text; one run for
- * files with CR-only line ends.
+ * Where the first run of whole records ends: just after the first line feed at or after `headChars`
+ * that is outside quotes (an even number of quotes before it); the text's length when there is none.
  */
-function recordCuts(text: string, from: number): number[] {
-  const cuts: number[] = []
+function headEnd(text: string): number {
   let quotes = 0
-  let nextQuote = text.indexOf('"', from)
-  let pos = from
-  while (pos < text.length) {
-    let nl = text.indexOf('\n', Math.min(pos + chunkChars, text.length))
-    for (;;) {
-      if (nl === -1) return cuts
-      while (nextQuote !== -1 && nextQuote < nl) {
-        quotes++
-        nextQuote = text.indexOf('"', nextQuote + 1)
-      }
-      if (quotes % 2 === 0) break
-      nl = text.indexOf('\n', nl + 1)
+  let nextQuote = text.indexOf('"')
+  let nl = text.indexOf('\n', Math.min(headChars, text.length))
+  for (;;) {
+    if (nl === -1) return text.length
+    while (nextQuote !== -1 && nextQuote < nl) {
+      quotes++
+      nextQuote = text.indexOf('"', nextQuote + 1)
     }
-    pos = nl + 1
-    if (pos < text.length) cuts.push(pos)
+    if (quotes % 2 === 0) return nl + 1
+    nl = text.indexOf('\n', nl + 1)
   }
-  return cuts
 }
 
-/** Line breaks in text[from, to) counted as shared/csv.ts counts them: LF, CRLF and CR alone. */
-function countLineBreaks(text: string, from: number, to: number): number {
-  let n = 0
-  for (let i = text.indexOf('\n', from); i !== -1 && i < to; i = text.indexOf('\n', i + 1)) n++
-  for (let i = text.indexOf('\r', from); i !== -1 && i < to; i = text.indexOf('\r', i + 1)) {
-    if (text.charCodeAt(i + 1) !== 10) n++
+function hasPoint(text: string, from: number, to: number): boolean {
+  for (let i = from; i < to; i++) if (text.charCodeAt(i) === 46) return true
+  return false
+}
+
+/** The last text read from one column and what it was read as (`has` once it has been read). */
+class Recent<T> {
+  raw: string | null = null
+  has = false
+  value: T | undefined = undefined
+}
+
+function cached<T>(cache: Map<string, T>, raw: string, read: (raw: string) => T): T {
+  let v = cache.get(raw)
+  if (v === undefined && !cache.has(raw)) {
+    v = read(raw)
+    cache.set(raw, v)
   }
-  return n
+  return v as T
 }
 
 export interface LabCsvRead {
@@ -271,11 +274,9 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
   if (profile) for (const [from, to] of Object.entries(profile.columns)) rename[from] = to
   const source = blankLines(text, profile?.skipLines ?? 0)
 
-  // the first run (header and the rows after it) goes through parseCsvTable, which maps the header
-  // and detects the decimal mark; later runs go through parseCsv with the same delimiter
-  const cuts = recordCuts(source, 0)
-  const headEnd = cuts[0] ?? source.length
-  const table = parseCsvTable(source.slice(0, headEnd), { columns: labColumns, ignore: ['organic_n'] }, {
+  // the first run of records (header and the rows after it) goes through parseCsvTable, which maps
+  // the header and detects the decimal mark; then every row is read in one pass (CsvCursor)
+  const table = parseCsvTable(source.slice(0, headEnd(source)), { columns: labColumns, ignore: ['organic_n'] }, {
     ...(profile?.delimiter ? { delimiter: profile.delimiter } : {}),
     ...(profile?.decimal ? { decimal: profile.decimal } : {}),
     rename,
@@ -361,18 +362,46 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
   const defaultSpecies = profile?.defaults.species?.toLowerCase() ?? null
   const defaultLab = profile?.defaults.lab ?? null
 
-  const seen = new Map<string, Map<string, number>>() // report → sample → line
+  // report and sample → the line they first appear on
+  const seenSpans = new SpanPairSet(source)
+  const seen = new Map<string, Map<string, number>>() // codes with doubled quotes: report → sample → line
   const dateCache = new Map<string, string | { reason: string }>()
   const unitCache = new Map<string, AnalysisUnits | null>()
   const basisCache = new Map<string, AnalysisBasis | null>()
   const formCache = new Map<string, ManureForm | null>()
-  const cached = <T>(cache: Map<string, T>, raw: string, read: (raw: string) => T): T => {
-    let v = cache.get(raw)
-    if (v === undefined && !cache.has(raw)) {
-      v = read(raw)
-      cache.set(raw, v)
+  // consecutive rows mostly repeat a column's text (one report's date, a storage's codes): the last
+  // text of each column and what it was read as
+  const rDate = new Recent<string | { reason: string }>()
+  const rForm = new Recent<ManureForm | null>()
+  const rUnits = new Recent<AnalysisUnits | null>()
+  const rBasis = new Recent<AnalysisBasis | null>()
+  const rSpecies = new Recent<string>()
+  const rReport = new Recent<null>()
+  const rFarm = new Recent<null>()
+  const rStorage = new Recent<null>()
+  const rLab = new Recent<null>()
+
+  // the analysis cells of the current row, in the order they are read: `reported` is put together
+  // from them only when asked for (a result stored as reported keeps `reportedOdd` instead)
+  const repColumns: string[] = []
+  const repStarts = new Int32Array(16)
+  const repEnds = new Int32Array(16)
+  /** the whole entry for a cell read by the general path */
+  const repEntries: (string | null)[] = []
+  let repCount = 0
+  let rowCount = 0
+  let reportedRow = -1
+  let reportedText = ''
+  const reportedOf = (): string => {
+    if (reportedRow === rowCount) return reportedText
+    let s = '{'
+    for (let r = 0; r < repCount; r++) {
+      if (r > 0) s += ','
+      s += repEntries[r] ?? '"' + repColumns[r]! + '":"' + source.slice(repStarts[r]!, repEnds[r]!) + '"'
     }
-    return v as T
+    reportedText = s + '}'
+    reportedRow = rowCount
+    return reportedText
   }
 
   const row: LabRow = {
@@ -381,15 +410,21 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     ammoniumN: null, p2o5: null, p: null, k2o: null, k: null, sulfur: null, ph: null, reported: '',
     reportedOdd: '', qualifiers: null, warnings: null,
   }
-  let reported = ''
+  Object.defineProperty(row, 'reported', {
+    enumerable: true,
+    get: reportedOf,
+    set: (value: string) => {
+      reportedText = value
+      reportedRow = rowCount
+    },
+  })
   let reportedOdd = ''
   let qualifiers = ''
-  let cells: readonly string[] = []
   let line = 0
   let bad = false
   let warnings: string[] | null = null
+  const cur = new CsvCursor(source, table.delimiter)
 
-  const cell = (i: number) => (i < 0 ? '' : (cells[i] ?? '').trim())
   const err = (column: string, code: string, message: string) => {
     problems.push({ code, line, column, message })
     bad = true
@@ -397,23 +432,64 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
   const warn = (column: string, message: string) => {
     ;(warnings ??= []).push(`${column}: ${message}`)
   }
-  // numbers: the fast path covers plain decimals; everything else goes through parseNumberCell
-  const num = (i: number, column: string, required: boolean): number | null => {
-    if (i < 0) return null
-    const raw = cell(i)
+  /** cell k trimmed; the previous row's string when the text is the same */
+  const textOf = <T>(k: number, recent: Recent<T>): string => {
+    if (k < 0) return ''
+    const last = recent.raw
+    if (last !== null && cur.is(k, last)) return last
+    recent.raw = cur.trimmed(k)
+    recent.has = false
+    return recent.raw
+  }
+  const readDate = (raw: string): string | { reason: string } => {
+    const parsed = parseDateCell(raw)
+    return parsed.ok ? parsed.value : { reason: parsed.reason }
+  }
+  const readForm = (raw: string): ManureForm | null => formNames.get(compact(raw)) ?? null
+  const addEntry = (column: string, s: number, e: number, entry: string | null) => {
+    if (repCount === repStarts.length) return // never: there are 10 analysis columns
+    repColumns[repCount] = column
+    repStarts[repCount] = s
+    repEnds[repCount] = e
+    repEntries[repCount] = entry
+    repCount++
+  }
+  // numbers: plain decimals are read from the characters in place; everything else goes through parseNumberCell
+  const num = (k: number, column: string, required: boolean): number | null => {
+    if (k < 0) return null
+    if (k < cur.count) {
+      const s = cur.starts[k]!
+      const e = cur.ends[k]!
+      if (s >= 0 && s < e) {
+        const a = source.charCodeAt(s)
+        const b = source.charCodeAt(e - 1)
+        // in a decimal-comma file "6.240" is a thousands separator (or ambiguous), never 6.24
+        if (a >= 48 && a <= 57 && b >= 48 && b <= 57 && (decimal === '.' || !hasPoint(source, s, e))) {
+          const value = readPlainDecimal(source, s, e)
+          if (value !== -1) {
+            addEntry(column, s, e, null)
+            if (!storedColumns.has(column) || !isCanonicalDecimalAt(source, s, e)) {
+              const entry = '"' + column + '":"' + source.slice(s, e) + '"'
+              reportedOdd += reportedOdd === '' ? entry : ',' + entry
+            }
+            return value
+          }
+        }
+      }
+    }
+    const raw = cur.trimmed(k)
     if (raw === '') {
       if (required) err(column, 'missing', 'is empty (a number is required)')
       return null
     }
-    // in a decimal-comma file "6.240" is a thousands separator (or ambiguous), never 6.24
     if (plainNumber.test(raw) && (decimal === '.' || raw.indexOf('.') === -1)) {
       const entry = '"' + column + '":"' + raw + '"'
-      reported += reported === '' ? entry : ',' + entry
+      addEntry(column, 0, 0, entry)
       if (!storedColumns.has(column) || !canonicalDecimal.test(raw)) reportedOdd += reportedOdd === '' ? entry : ',' + entry
       return Number(raw)
     }
     const entry = '"' + column + '":' + JSON.stringify(raw)
-    reported += reported === '' ? entry : ',' + entry
+    addEntry(column, 0, 0, entry)
     reportedOdd += reportedOdd === '' ? entry : ',' + entry
     const parsed = parseNumberCell(raw, decimal)
     if (!parsed.ok) {
@@ -438,59 +514,87 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
   const readRow = () => {
     bad = false
     warnings = null
-    reported = ''
+    repCount = 0
     reportedOdd = ''
     qualifiers = ''
+    rowCount++
 
-    const reportId = cell(iReport)
-    const sampleId = cell(iSample)
-    const farm = cell(iFarm)
-    const storage = cell(iStorage)
+    const reportId = textOf(iReport, rReport)
+    const sampleId = iSample < 0 ? '' : cur.trimmed(iSample)
+    const farm = textOf(iFarm, rFarm)
+    const storage = textOf(iStorage, rStorage)
     if (reportId === '') err('report_id', 'missing', 'is empty (the lab report number, e.g. CRA-24-0117)')
     if (sampleId === '') err('sample_id', 'missing', 'is empty (the sample id written on the bottle)')
     if (farm === '') err('farm', 'missing', 'is empty (the farm code)')
     if (storage === '') err('storage', 'missing', 'is empty (the storage code)')
     if (reportId !== '' && sampleId !== '') {
-      let samples = seen.get(reportId)
-      if (!samples) seen.set(reportId, (samples = new Map()))
-      const first = samples.get(sampleId)
+      let first: number | undefined
+      if (cur.span(iReport)) {
+        const rs = cur.spanStart
+        const re = cur.spanEnd
+        if (cur.span(iSample)) first = seenSpans.add(rs, re, cur.spanStart, cur.spanEnd, line) || undefined
+      }
+      if (first === undefined && (!cur.span(iReport) || !cur.span(iSample))) {
+        // a code with doubled quotes, which no span holds
+        let samples = seen.get(reportId)
+        if (!samples) seen.set(reportId, (samples = new Map()))
+        first = samples.get(sampleId)
+        if (first === undefined) samples.set(sampleId, line)
+      }
       if (first !== undefined) err('sample_id', 'duplicate_row', `report ${reportId} sample ${sampleId} already appears on line ${first}`)
-      else samples.set(sampleId, line)
     }
 
     let sampledOn = ''
-    const d = cached(dateCache, cell(iDate), (raw) => {
-      const parsed = parseDateCell(raw)
-      return parsed.ok ? parsed.value : { reason: parsed.reason }
-    })
+    const rawDate = textOf(iDate, rDate)
+    if (!rDate.has) {
+      rDate.value = cached(dateCache, rawDate, readDate)
+      rDate.has = true
+    }
+    const d = rDate.value!
     if (typeof d === 'string') {
       if (d > today) err('sampled_on', 'future_date', `${d} is after today (${today})`)
       else sampledOn = d
     } else err('sampled_on', 'invalid_date', d.reason)
 
     let form: ManureForm | null = defaultForm
-    const rawForm = cell(iForm)
+    const rawForm = textOf(iForm, rForm)
     if (rawForm !== '') {
-      const f = cached(formCache, rawForm, (raw) => formNames.get(compact(raw)) ?? null)
+      if (!rForm.has) {
+        rForm.value = cached(formCache, rawForm, readForm)
+        rForm.has = true
+      }
+      const f = rForm.value!
       if (f) form = f
       else err('form', 'unknown_form', `expected liquid or solid, found "${rawForm}"`)
     }
-    const rawSpecies = cell(iSpecies)
-    const species = rawSpecies !== '' ? rawSpecies.toLowerCase() : defaultSpecies
+    const rawSpecies = textOf(iSpecies, rSpecies)
+    if (rawSpecies !== '' && !rSpecies.has) {
+      rSpecies.value = rawSpecies.toLowerCase()
+      rSpecies.has = true
+    }
+    const species = rawSpecies !== '' ? rSpecies.value! : defaultSpecies
 
     let units: AnalysisUnits | null = fallbackUnits
-    const rawUnits = cell(iUnits)
+    const rawUnits = textOf(iUnits, rUnits)
     if (rawUnits !== '') {
-      const u = cached(unitCache, rawUnits, parseLabUnits)
+      if (!rUnits.has) {
+        rUnits.value = cached(unitCache, rawUnits, parseLabUnits)
+        rUnits.has = true
+      }
+      const u = rUnits.value!
       if (!u) err('units', 'unknown_unit', `"${rawUnits}" is not a unit Pitside reads (lb_per_1000gal, lb_per_ton, pct, ppm, mg_per_l, g_per_l, kg_per_m3, kg_per_t)`)
       else if (headerUnits && u !== headerUnits) err('units', 'mixed_units', `is ${u} but the header says ${headerUnits}`)
       else units = u
     } else if (!units) err('units', 'missing', 'is empty and the header gives no unit')
 
     let basis: AnalysisBasis | null = fallbackBasis
-    const rawBasis = cell(iBasis)
+    const rawBasis = textOf(iBasis, rBasis)
     if (rawBasis !== '') {
-      const b = cached(basisCache, rawBasis, parseLabBasis)
+      if (!rBasis.has) {
+        rBasis.value = cached(basisCache, rawBasis, parseLabBasis)
+        rBasis.has = true
+      }
+      const b = rBasis.value!
       if (b) basis = b
       else err('basis', 'unknown_basis', `expected as_is or dry, found "${rawBasis}"`)
     } else if (!basis) err('basis', 'missing', 'is empty (as_is or dry)')
@@ -529,8 +633,8 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     }
     if (bad || totalN === null || !units || !basis) return
 
-    const lab = cell(iLab)
-    const notes = cell(iNotes)
+    const lab = textOf(iLab, rLab)
+    const notes = iNotes < 0 ? '' : cur.trimmed(iNotes)
     row.line = line
     row.reportId = reportId
     row.sampleId = sampleId
@@ -552,51 +656,38 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     row.k = k
     row.sulfur = sulfur
     row.ph = ph
-    row.reported = '{' + reported + '}'
-    row.reportedOdd = '{' + reportedOdd + '}'
+    row.reportedOdd = reportedOdd === '' ? '{}' : '{' + reportedOdd + '}'
     row.qualifiers = qualifiers === '' ? null : '{' + qualifiers + '}'
     row.warnings = warnings
     passed++
     onRow(row)
   }
 
-  for (let r = 0; r < table.rows.length; r++) {
-    cells = table.rows[r]!
-    line = table.lines[r]!
-    readRow()
-  }
-
-  const headerWidth = parseCsv(source.slice(0, headEnd), { delimiter: table.delimiter }).records[0]?.length ?? 0
-  let firstLine = 1 + countLineBreaks(source, 0, headEnd)
-  for (let c = 0; c < cuts.length; c++) {
-    const from = cuts[c]!
-    const to = cuts[c + 1] ?? source.length
-    const parsed = parseCsv(source.slice(from, to), { delimiter: table.delimiter })
-    const offset = firstLine - 1
-    for (let r = 0; r < parsed.records.length; r++) {
-      cells = parsed.records[r]!
-      line = parsed.lines[r]! + offset
-      let blank = true
-      for (let k = 0; k < cells.length; k++) {
-        if (cells[k]!.trim() !== '') {
-          blank = false
-          break
-        }
+  // one pass over the records after the header: the first run of records has been read by
+  // parseCsvTable without a problem (else reading stopped above), so the reader sees the same records
+  cur.next() // the header
+  const width = cur.count
+  while (cur.next()) {
+    line = cur.line
+    let blank = true
+    for (let c = 0; c < cur.count; c++) {
+      if (!cur.blank(c)) {
+        blank = false
+        break
       }
-      if (blank) continue // trailing "; ; ;" rows from spreadsheets
-      if (cells.length > headerWidth && cells.slice(headerWidth).some((x) => x.trim() !== '')) {
-        problems.push({ code: 'too_many_cells', line, message: `has ${cells.length} cells but the header has ${headerWidth} (a delimiter inside a value must be quoted)` })
+    }
+    if (blank) continue // trailing "; ; ;" rows from spreadsheets
+    if (cur.count > width) {
+      let extra = false
+      for (let c = width; c < cur.count; c++) if (!cur.blank(c)) extra = true
+      if (extra) {
+        problems.push({ code: 'too_many_cells', line, message: `has ${cur.count} cells but the header has ${width} (a delimiter inside a value must be quoted)` })
         continue
       }
-      readRow()
     }
-    if (parsed.problem) {
-      problems.push({ ...parsed.problem, line: (parsed.problem.line ?? 1) + offset, message: parsed.problem.message.replace(/on line \d+/, `on line ${(parsed.problem.line ?? 1) + offset}`) })
-      break
-    }
-    firstLine += countLineBreaks(source, from, to)
+    readRow()
   }
-
+  if (cur.problem) problems.push(cur.problem)
   if (passed === 0 && !problems.some((p) => p.severity !== 'warning')) {
     problems.push({ code: 'no_rows', line: headerLine, message: 'the file has a header but no results' })
   }
