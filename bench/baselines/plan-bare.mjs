@@ -88,6 +88,7 @@ db.transaction(() => {
     const farmStorages = []
     while (s < storages.length && storages[s][1] === farmId) farmStorages.push(s++)
     const planned = []
+    const cited = new Set()
     const inputFields = []
     const rows = []
     const totals = { fields: 0, acres: 0, planned: { gal: 0, ton: 0 }, applied_lb: { n: 0, p2o5: 0, k2o: 0 }, supplied_lb: { n: 0, p2o5: 0, k2o: 0 }, supplemental_lb: { n: 0, p2o5: 0, k2o: 0 }, skipped: 0 }
@@ -106,8 +107,10 @@ db.transaction(() => {
         reference_set: set.name,
         acres,
       }
-      const { warnings, ...numbers } = computeRate(c, { referenceSet: set })
-      const result = { field: code, name, acres, crop, yield_goal: yieldGoal, storage: st[2], method, incorporated_within_hours: method === 'broadcast_incorporated' ? hours : null, basis: 'n', credits: { manure_n: 0, applications: 0 }, ...numbers, warnings }
+      const { warnings, sources, ...numbers } = computeRate(c, { referenceSet: set })
+      // as a stored plan has them: each field names its sources by id, the plan lists them once
+      for (const s of sources) cited.add(s.id)
+      const result = { field: code, name, acres, crop, yield_goal: yieldGoal, storage: st[2], method, incorporated_within_hours: method === 'broadcast_incorporated' ? hours : null, basis: 'n', credits: { manure_n: 0, applications: 0 }, ...numbers, source_ids: sources.map((s) => s.id), warnings }
       rows.push([fieldId, storageId, result])
       inputFields.push({ code, name, acres, storage: st[2], method, incorporatedWithinHours: hours, case: c })
       planned.push(result)
@@ -133,7 +136,7 @@ db.transaction(() => {
       analysis: analyses[i],
     }))
     const version = versions.get(farmId) ?? 1
-    const body = { farm: farmCode, season, version, reference_set: set.name, created_at: createdAt, as_of: asOf, basis: 'n', reference_set_version: set.version, storages: storageResults, fields: planned, skipped: [], totals, warnings: [] }
+    const body = { farm: farmCode, season, version, reference_set: set.name, created_at: createdAt, as_of: asOf, basis: 'n', reference_set_version: set.version, storages: storageResults, fields: planned, skipped: [], totals, warnings: [], sources: set.sources.filter((s) => cited.has(s.id)) }
     const inputs = { farm: farmCode, season, as_of: asOf, basis: 'n', reference_set: { name: set.name, version: set.version }, storages: farmStorages.map((i) => ({ code: storages[i][2], results_used: used[i] })), fields: inputFields }
     const planId = insertPlan.run(farmId, season, version, set.name, set.version, 'n', asOf, JSON.stringify(inputs), JSON.stringify(body), 'bench', createdAt).lastInsertRowid
     for (const [fieldId, storageId, r] of rows) {
