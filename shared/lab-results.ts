@@ -1,7 +1,8 @@
-import { normalizeAnalysis, type ManureForm } from './analysis.ts'
+import { normalizeAnalysis, type AsIsAnalysis, type ManureForm } from './analysis.ts'
 import type { Problem } from './errors.ts'
 import type { LabRow } from './lab-csv.ts'
 import type { BookValues } from './reference-sets/registry.ts'
+import { k2oPerK, p2o5PerP } from './units.ts'
 
 /** A storage as the lab import needs it: where results go and what they should look like. */
 export interface LabStorage {
@@ -60,9 +61,7 @@ export interface LabResult extends LabResultValues {
  */
 export const historyRule = { factor: 2, factorMinResults: 2, sds: 3, sdMinResults: 5 } as const
 
-const checkedColumns = ['total_n', 'ammonium_n', 'p2o5', 'k2o', 'dry_matter_pct'] as const
-type CheckedColumn = (typeof checkedColumns)[number]
-const bookKey = { total_n: 'totalN', ammonium_n: 'ammoniumN', p2o5: 'p2o5', k2o: 'k2o', dry_matter_pct: 'dryMatterPct' } as const
+type CheckedColumn = 'total_n' | 'ammonium_n' | 'p2o5' | 'k2o' | 'dry_matter_pct'
 
 /** Drops binary rounding noise (57.3 − 39.2 = 18.099999999999994) at 9 decimals, far below any lab's precision. */
 function tidy(x: number | null): number | null {
@@ -106,58 +105,30 @@ export function checkLabRow(row: LabRow, context: LabCheckContext, problems: Pro
     return false
   }
   const form = storage.form
-  const normalized = normalizeAnalysis({
-    form,
-    units: row.units,
-    basis: row.basis,
-    dryMatterPct: row.dryMatterPct ?? undefined,
-    totalN: row.totalN,
-    ammoniumN: row.ammoniumN ?? undefined,
-    p2o5: row.p2o5 ?? undefined,
-    p: row.p ?? undefined,
-    k2o: row.k2o ?? undefined,
-    k: row.k ?? undefined,
-    sulfur: row.sulfur ?? undefined,
-  })
-  const a = normalized.value
-  if (!a) {
-    for (const p of normalized.problems) problems.push({ ...p, line: row.line })
-    return false
-  }
+  const a = asStored(row, form) ?? normalizeRow(row, form, problems)
+  if (!a) return false
 
-  let warnings = row.warnings ? [...row.warnings] : null
-  const warn = (column: string, message: string) => {
-    ;(warnings ??= []).push(`${column}: ${message}`)
-  }
+  const warnings: Warnings = { list: row.warnings ? [...row.warnings] : null }
   if (row.species && row.species !== storage.species.toLowerCase()) {
-    warn('species', `is ${row.species} but storage ${storage.farmCode}/${storage.code} is recorded as ${storage.species}`)
+    warn(warnings, 'species', `is ${row.species} but storage ${storage.farmCode}/${storage.code} is recorded as ${storage.species}`)
   }
   let samplingEventId: number | null = null
-  const event = context.samplingEvents?.get(row.sampleId)
+  const events = context.samplingEvents
+  const event = events && events.size > 0 ? events.get(row.sampleId) : undefined
   if (event) {
     if (event.storageId === storage.id) samplingEventId = event.id
-    else warn('sample_id', `${row.sampleId} was recorded as a sample of another storage; not linked to that sampling event`)
+    else warn(warnings, 'sample_id', `${row.sampleId} was recorded as a sample of another storage; not linked to that sampling event`)
   }
 
-  const unit = form === 'liquid' ? 'lb/1000 gal' : 'lb/ton'
   const book = context.bookValues(storage)
   const history = context.history(storage.id)
-  for (const column of checkedColumns) {
-    const x = column === 'total_n' ? a.totalN : column === 'ammonium_n' ? a.ammoniumN : column === 'p2o5' ? a.p2o5 : column === 'k2o' ? a.k2o : a.dryMatterPct
-    if (x === null) continue
-    const u = column === 'dry_matter_pct' ? '%' : unit
-    const range = book?.[bookKey[column]]
-    if (range && (x < range.low || x > range.high)) {
-      warn(column, `${fmt(x)} ${u} is outside the book range ${fmt(range.low)}–${fmt(range.high)} ${u} for ${book!.species} ${form} manure (book values: ${book!.source.publisher}${book!.source.year ? ` ${book!.source.year}` : ''})`)
-    }
-    const h = history?.[column]
-    if (h && h.mean > 0) {
-      if (h.n >= historyRule.factorMinResults && (x > h.mean * historyRule.factor || x < h.mean / historyRule.factor)) {
-        warn(column, `${fmt(x)} ${u} is more than a factor of ${historyRule.factor} from this storage's mean of ${fmt(h.mean)} (${h.n} earlier results)`)
-      } else if (h.n >= historyRule.sdMinResults && h.sd > 0 && Math.abs(x - h.mean) > historyRule.sds * h.sd) {
-        warn(column, `${fmt(x)} ${u} is more than ${historyRule.sds} standard deviations (${fmt(h.sd)}) from this storage's mean of ${fmt(h.mean)} (${h.n} earlier results)`)
-      }
-    }
+  if (book || history) {
+    const unit = form === 'liquid' ? 'lb/1000 gal' : 'lb/ton'
+    plausible(warnings, 'total_n', a.totalN, unit, form, book, book?.totalN, history?.total_n)
+    plausible(warnings, 'ammonium_n', a.ammoniumN, unit, form, book, book?.ammoniumN, history?.ammonium_n)
+    plausible(warnings, 'p2o5', a.p2o5, unit, form, book, book?.p2o5, history?.p2o5)
+    plausible(warnings, 'k2o', a.k2o, unit, form, book, book?.k2o, history?.k2o)
+    plausible(warnings, 'dry_matter_pct', a.dryMatterPct, '%', form, book, book?.dryMatterPct, history?.dry_matter_pct)
   }
 
   out.storageId = storage.id
@@ -172,8 +143,88 @@ export function checkLabRow(row: LabRow, context: LabCheckContext, problems: Pro
   out.p2o5 = tidy(a.p2o5)
   out.k2o = tidy(a.k2o)
   out.sulfur = tidy(a.sulfur)
-  out.warnings = warnings
+  out.warnings = warnings.list
   return true
+}
+
+interface Warnings {
+  list: string[] | null
+}
+
+function warn(w: Warnings, column: string, message: string): void {
+  ;(w.list ??= []).push(`${column}: ${message}`)
+}
+
+type BookRange = { low: number; high: number } | null | undefined
+
+/** The book-range and history warnings of one value (as-is, in `u`). */
+function plausible(w: Warnings, column: CheckedColumn, x: number | null, u: string, form: string, book: BookValues | null, range: BookRange, h: LabHistory[string]): void {
+  if (x === null) return
+  if (range && (x < range.low || x > range.high)) {
+    warn(w, column, `${fmt(x)} ${u} is outside the book range ${fmt(range.low)}–${fmt(range.high)} ${u} for ${book!.species} ${form} manure (book values: ${book!.source.publisher}${book!.source.year ? ` ${book!.source.year}` : ''})`)
+  }
+  if (h && h.mean > 0) {
+    if (h.n >= historyRule.factorMinResults && (x > h.mean * historyRule.factor || x < h.mean / historyRule.factor)) {
+      warn(w, column, `${fmt(x)} ${u} is more than a factor of ${historyRule.factor} from this storage's mean of ${fmt(h.mean)} (${h.n} earlier results)`)
+    } else if (h.n >= historyRule.sdMinResults && h.sd > 0 && Math.abs(x - h.mean) > historyRule.sds * h.sd) {
+      warn(w, column, `${fmt(x)} ${u} is more than ${historyRule.sds} standard deviations (${fmt(h.sd)}) from this storage's mean of ${fmt(h.mean)} (${h.n} earlier results)`)
+    }
+  }
+}
+
+/** normalizeAnalysis of a row, its problems given the row's line; null when it refuses the row. */
+function normalizeRow(row: LabRow, form: ManureForm, problems: Problem[]): AsIsAnalysis | null {
+  const normalized = normalizeAnalysis({
+    form,
+    units: row.units,
+    basis: row.basis,
+    dryMatterPct: row.dryMatterPct ?? undefined,
+    totalN: row.totalN,
+    ammoniumN: row.ammoniumN ?? undefined,
+    p2o5: row.p2o5 ?? undefined,
+    p: row.p ?? undefined,
+    k2o: row.k2o ?? undefined,
+    k: row.k ?? undefined,
+    sulfur: row.sulfur ?? undefined,
+  })
+  if (normalized.value) return normalized.value
+  for (const p of normalized.problems) problems.push({ ...p, line: row.line })
+  return null
+}
+
+function amount(x: number | null): boolean {
+  return x === null || (Number.isFinite(x) && x >= 0)
+}
+
+/** One object reused for the rows that asStored reads: callers use it before the next row. */
+const storedAnalysis: AsIsAnalysis = { per: '1000gal', dryMatterPct: null, totalN: 0, ammoniumN: null, organicN: null, p2o5: null, k2o: null, sulfur: null }
+
+/**
+ * The as-is analysis of a row reported as-is in the units its form is stored in, where
+ * normalizeAnalysis has nothing to convert (its factor is 1) and nothing to refuse; null for every
+ * other row, which goes through normalizeAnalysis. Gives exactly normalizeAnalysis's values.
+ */
+function asStored(row: LabRow, form: ManureForm): AsIsAnalysis | null {
+  if (row.basis !== 'as_is' || row.units !== (form === 'liquid' ? 'lb_per_1000gal' : form === 'solid' ? 'lb_per_ton' : null)) return null
+  const dm = row.dryMatterPct
+  if (dm !== null && !(Number.isFinite(dm) && dm >= 0 && dm <= 100)) return null
+  const { totalN, ammoniumN, p, k } = row
+  let { p2o5, k2o } = row
+  if (!(Number.isFinite(totalN) && totalN >= 0) || !amount(ammoniumN) || !amount(p2o5) || !amount(p) || !amount(k2o) || !amount(k) || !amount(row.sulfur)) return null
+  if ((p !== null && p2o5 !== null) || (k !== null && k2o !== null)) return null
+  if (ammoniumN !== null && ammoniumN > totalN) return null
+  if (p !== null) p2o5 = p * p2o5PerP
+  if (k !== null) k2o = k * k2oPerK
+  const a = storedAnalysis
+  a.per = form === 'liquid' ? '1000gal' : 'ton'
+  a.dryMatterPct = dm
+  a.totalN = totalN
+  a.ammoniumN = ammoniumN
+  a.organicN = ammoniumN === null ? null : totalN - ammoniumN
+  a.p2o5 = p2o5
+  a.k2o = k2o
+  a.sulfur = row.sulfur
+  return a
 }
 
 const last: { context: LabCheckContext | null; farm: string; storageCode: string; storage: LabStorage | undefined } = {
@@ -182,14 +233,14 @@ const last: { context: LabCheckContext | null; farm: string; storageCode: string
   storageCode: '',
   storage: undefined,
 }
-/** per context: farm and storage codes as written in the file → the storage */
-const resolved = new WeakMap<LabCheckContext, Map<string, LabStorage>>()
+/** per context: farm code as written in the file → storage code as written → the storage */
+const resolved = new WeakMap<LabCheckContext, Map<string, Map<string, LabStorage>>>()
 
 function resolveStorage(row: LabRow, context: LabCheckContext, problems: Problem[]): LabStorage | undefined {
   let seen = resolved.get(context)
   if (!seen) resolved.set(context, (seen = new Map()))
-  const rawKey = row.farm + '\u0000' + row.storage
-  const hit = seen.get(rawKey)
+  let ofFarm = seen.get(row.farm)
+  const hit = ofFarm?.get(row.storage)
   if (hit) return remember(context, row, hit)
   const farmKey = row.farm.toLowerCase()
   const farm = context.farms.get(farmKey)
@@ -203,7 +254,8 @@ function resolveStorage(row: LabRow, context: LabCheckContext, problems: Problem
     problems.push({ code: 'unknown_storage', line: row.line, column: 'storage', message: `storage "${row.storage}" is not a storage of farm ${farm.code} (its storages: ${listed(farm.storages)})` })
     return undefined
   }
-  seen.set(rawKey, storage)
+  if (!ofFarm) seen.set(row.farm, (ofFarm = new Map()))
+  ofFarm.set(row.storage, storage)
   return remember(context, row, storage)
 }
 
