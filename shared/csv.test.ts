@@ -1,6 +1,6 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { CsvCursor, parseCsv, SpanPairSet } from './csv.ts'
+import { CsvCursor, hashSpans, parseCsv, RecordIndex } from './csv.ts'
 
 /** Every record the cursor reads, as parseCsv gives records, lines and the problem. */
 function readAll(text: string, delimiter: string) {
@@ -63,28 +63,44 @@ describe('CsvCursor', () => {
   })
 })
 
-describe('SpanPairSet', () => {
-  it('finds a pair again by its texts, wherever they lie, and keeps the first line', () => {
+describe('RecordIndex', () => {
+  it('finds a record again by its codes, wherever they lie, and keeps the first line', () => {
     const words = fc.constantFrom('', 'a', 'b', 'ab', 'ba', 'aa', 'S1', 'S10', 'R-1')
     fc.assert(
-      fc.property(fc.array(fc.tuple(words, words), { maxLength: 300 }), (pairs) => {
-        // every word written into one text, so that equal texts lie at different places
+      fc.property(fc.array(fc.tuple(words, words), { maxLength: 300 }), fc.boolean(), (pairs, weakHash) => {
+        // every pair written into one text, so that equal codes lie at different places
         const text = pairs.map(([a, b]) => a + '|' + b + '|').join('')
-        const set = new SpanPairSet(text, 4)
-        const reference = new Map<string, number>()
+        const starts: number[] = []
         let at = 0
+        for (const [a, b] of pairs) {
+          starts.push(at)
+          at += a.length + b.length + 2
+        }
+        const codesAt = (offset: number) => {
+          const i = starts.indexOf(offset)
+          return JSON.stringify(pairs[i])
+        }
+        const index = new RecordIndex(4)
+        const reference = new Map<string, number>()
         pairs.forEach(([a, b], i) => {
           const line = i + 2
-          const aStart = at
+          const aStart = starts[i]!
           const bStart = aStart + a.length + 1
-          at = bStart + b.length + 1
-          const first = set.add(aStart, aStart + a.length, bStart, bStart + b.length, line)
+          // a hash that collides often, to check that equal hashes are told apart
+          const hash = weakHash ? a.length : hashSpans(text, aStart, aStart + a.length, bStart, bStart + b.length)
           const key = JSON.stringify([a, b])
+          const first = index.add(hash, aStart, line, (earlier) => codesAt(earlier) === key)
           expect(first).toBe(reference.get(key) ?? 0)
           if (!reference.has(key)) reference.set(key, line)
         })
       }),
       { numRuns: 500 },
     )
+  })
+
+  it('hashes equal codes alike wherever they lie', () => {
+    const text = 'R1|S2|xR1|S2|'
+    expect(hashSpans(text, 0, 2, 3, 5)).toBe(hashSpans(text, 7, 9, 10, 12))
+    expect(hashSpans(text, 0, 2, 3, 5)).not.toBe(hashSpans(text, 3, 5, 0, 2))
   })
 })

@@ -175,6 +175,8 @@ export class CsvCursor {
   escaped: string[] = []
   /** 1-based line on which the current record starts */
   line = 0
+  /** offset in the text at which the current record starts (give it to `seek` to read the record again) */
+  start = 0
   /** set when reading stopped at a malformed quote; the record it is in is not returned */
   problem: Problem | undefined
   readonly text: string
@@ -197,6 +199,7 @@ export class CsvCursor {
     let line = this.nextLine
     while (i < n) {
       const startLine = line
+      const start = i
       let count = 0
       for (;;) {
         if (count === this.starts.length) this.grow()
@@ -281,6 +284,7 @@ export class CsvCursor {
       if (count !== 1 || this.starts[0] !== this.ends[0]) {
         this.count = count
         this.line = startLine
+        this.start = start
         this.pos = i
         this.nextLine = line
         return true
@@ -290,6 +294,13 @@ export class CsvCursor {
     this.pos = i
     this.nextLine = line
     return false
+  }
+
+  /** Goes back (or on) to the record that starts at `offset`, read by the next `next()` as on `line`. */
+  seek(offset: number, line = 1): void {
+    this.pos = offset
+    this.nextLine = line
+    this.problem = undefined
   }
 
   /** The text of cell k as parseCsv gives it ('' past the last cell). */
@@ -397,97 +408,70 @@ export class CsvCursor {
   }
 }
 
+/** A 32-bit hash (FNV-1a) of the texts text[aStart, aEnd) and text[bStart, bEnd), as a pair. */
+export function hashSpans(text: string, aStart: number, aEnd: number, bStart: number, bEnd: number): number {
+  let h = 0x811c9dc5 | 0
+  for (let i = aStart; i < aEnd; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193)
+  h = Math.imul(h ^ 0xffff, 0x01000193) ^ (aEnd - aStart)
+  for (let i = bStart; i < bEnd; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193)
+  return h ^ (h >>> 15)
+}
+
 /**
- * A set of pairs of texts given as spans of one text (e.g. a report and a sample code), each with
- * the line it was first seen on: a hash table in typed arrays, so that a file's 200,000 pairs cost
- * no strings or objects that the garbage collector has to keep moving, and a small index (8 bytes
- * a slot) that stays in the processor's cache better than the pairs themselves. Pure.
+ * Records of a text filed by a hash of what identifies them (e.g. a lab file's report and sample
+ * codes), each with the line it was first seen on, to find repeats. Only the hash, the record's
+ * offset and its line are kept (12 bytes a slot, in one typed array): a file's 200,000 records cost
+ * no strings or objects for the garbage collector and little fresh memory, which is slow to get
+ * on a busy machine. Equal hashes are told apart by the caller, who reads the earlier record again.
  */
-export class SpanPairSet {
-  /** per slot: the pair's hash and 1 + its number in `pairs`; 0 marks an empty slot */
+export class RecordIndex {
+  /** per slot: hash, offset of the record, line; line 0 marks an empty slot */
   private slots: Int32Array
   private mask: number
-  /** per pair, in the order added: start and end of both spans, line */
-  private pairs: Int32Array
   private size = 0
 
-  constructor(
-    private readonly text: string,
-    capacity = 1024,
-  ) {
+  /** `expected`: about how many records will be added (the index grows past it) */
+  constructor(expected = 1024) {
     let n = 16
-    while (n < capacity * 2) n *= 2
-    this.slots = new Int32Array(n * 2)
+    while (n * 0.8 < expected) n *= 2
+    this.slots = new Int32Array(n * 3)
     this.mask = n - 1
-    this.pairs = new Int32Array(Math.max(16, capacity) * 5)
   }
 
   /**
-   * Adds the pair text[aStart, aEnd) + text[bStart, bEnd) seen on `line` and returns 0, or returns
-   * the line on which the same pair of texts was added before (leaving it as it is).
+   * Files the record at `offset`, first seen on `line` (≥ 1), under `hash` and returns 0; or, when
+   * `same(earlierOffset)` says a record filed under the same hash is the same, returns that
+   * record's line and files nothing.
    */
-  add(aStart: number, aEnd: number, bStart: number, bEnd: number, line: number): number {
-    const h = this.hash(aStart, aEnd, bStart, bEnd)
+  add(hash: number, offset: number, line: number, same: (earlierOffset: number) => boolean): number {
     const slots = this.slots
-    for (let i = h & this.mask; ; i = (i + 1) & this.mask) {
-      const entry = slots[i * 2 + 1]!
-      if (entry === 0) {
-        const o = this.size * 5
-        if (o === this.pairs.length) this.growPairs()
-        const pairs = this.pairs
-        pairs[o] = aStart
-        pairs[o + 1] = aEnd
-        pairs[o + 2] = bStart
-        pairs[o + 3] = bEnd
-        pairs[o + 4] = line
-        slots[i * 2] = h
-        slots[i * 2 + 1] = ++this.size
-        if (this.size * 2 > this.mask) this.growSlots()
+    for (let i = hash & this.mask; ; i = (i + 1) & this.mask) {
+      const o = i * 3
+      const seen = slots[o + 2]!
+      if (seen === 0) {
+        slots[o] = hash
+        slots[o + 1] = offset
+        slots[o + 2] = line
+        if (++this.size > (this.mask + 1) * 0.8) this.grow()
         return 0
       }
-      if (slots[i * 2] === h) {
-        const o = (entry - 1) * 5
-        const pairs = this.pairs
-        if (this.same(pairs[o]!, pairs[o + 1]!, aStart, aEnd) && this.same(pairs[o + 2]!, pairs[o + 3]!, bStart, bEnd)) return pairs[o + 4]!
-      }
+      if (slots[o] === hash && same(slots[o + 1]!)) return seen
     }
   }
 
-  private hash(aStart: number, aEnd: number, bStart: number, bEnd: number): number {
-    const text = this.text
-    let h = 0x811c9dc5 | 0
-    for (let i = aStart; i < aEnd; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193)
-    h = Math.imul(h ^ 0xffff, 0x01000193) ^ (aEnd - aStart)
-    for (let i = bStart; i < bEnd; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193)
-    return h ^ (h >>> 15)
-  }
-
-  private same(s1: number, e1: number, s2: number, e2: number): boolean {
-    if (e1 - s1 !== e2 - s2) return false
-    const text = this.text
-    for (let i = 0; i < e1 - s1; i++) if (text.charCodeAt(s1 + i) !== text.charCodeAt(s2 + i)) return false
-    return true
-  }
-
-  private growPairs(): void {
-    const pairs = new Int32Array(this.pairs.length * 2)
-    pairs.set(this.pairs)
-    this.pairs = pairs
-  }
-
-  private growSlots(): void {
+  private grow(): void {
     const old = this.slots
     const n = (this.mask + 1) * 2
-    const slots = new Int32Array(n * 2)
+    const slots = new Int32Array(n * 3)
     const mask = n - 1
-    for (let o = 0; o < old.length; o += 2) {
-      const entry = old[o + 1]!
-      if (entry === 0) continue
-      const h = old[o]!
-      let i = h & mask
-      while (slots[i * 2 + 1] !== 0) i = (i + 1) & mask
-      slots[i * 2] = h
-      slots[i * 2 + 1] = entry
+    for (let o = 0; o < old.length; o += 3) {
+      if (old[o + 2] === 0) continue
+      let i = old[o]! & mask
+      while (slots[i * 3 + 2] !== 0) i = (i + 1) & mask
+      const p = i * 3
+      slots[p] = old[o]!
+      slots[p + 1] = old[o + 1]!
+      slots[p + 2] = old[o + 2]!
     }
     this.slots = slots
     this.mask = mask

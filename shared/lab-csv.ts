@@ -1,7 +1,7 @@
 import type { AnalysisBasis, AnalysisUnits, ManureForm } from './analysis.ts'
 import { isCanonicalDecimalAt, parseDateCell, parseNumberCell, readPlainDecimal, type DecimalMark } from './csv-cells.ts'
 import { parseCsvTable, type ColumnSpec } from './csv-table.ts'
-import { CsvCursor, SpanPairSet } from './csv.ts'
+import { CsvCursor, hashSpans, RecordIndex } from './csv.ts'
 import type { Problem } from './errors.ts'
 import type { LabProfile } from './lab-profile.ts'
 import { canonicalDecimal, storedColumns } from './lab-reported.ts'
@@ -276,7 +276,8 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
 
   // the first run of records (header and the rows after it) goes through parseCsvTable, which maps
   // the header and detects the decimal mark; then every row is read in one pass (CsvCursor)
-  const table = parseCsvTable(source.slice(0, headEnd(source)), { columns: labColumns, ignore: ['organic_n'] }, {
+  const firstRun = headEnd(source)
+  const table = parseCsvTable(source.slice(0, firstRun), { columns: labColumns, ignore: ['organic_n'] }, {
     ...(profile?.delimiter ? { delimiter: profile.delimiter } : {}),
     ...(profile?.decimal ? { decimal: profile.decimal } : {}),
     rename,
@@ -362,8 +363,21 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
   const defaultSpecies = profile?.defaults.species?.toLowerCase() ?? null
   const defaultLab = profile?.defaults.lab ?? null
 
-  // report and sample → the line they first appear on
-  const seenSpans = new SpanPairSet(source)
+  // rows by report and sample, with the line they first appear on
+  const seenRecords = new RecordIndex((source.length / Math.max(1, firstRun)) * (table.rows.length + 1) * 1.1)
+  const again = new CsvCursor(source, table.delimiter)
+  let rs = 0, re = 0, ss = 0, se = 0 // the current row's report and sample codes
+  const sameSpan = (s1: number, e1: number, s2: number, e2: number): boolean => {
+    if (e1 - s1 !== e2 - s2) return false
+    for (let i = 0; i < e1 - s1; i++) if (source.charCodeAt(s1 + i) !== source.charCodeAt(s2 + i)) return false
+    return true
+  }
+  const sameCodes = (offset: number): boolean => {
+    again.seek(offset)
+    again.next()
+    if (!again.span(iReport) || !sameSpan(again.spanStart, again.spanEnd, rs, re)) return false
+    return again.span(iSample) && sameSpan(again.spanStart, again.spanEnd, ss, se)
+  }
   const seen = new Map<string, Map<string, number>>() // codes with doubled quotes: report → sample → line
   const dateCache = new Map<string, string | { reason: string }>()
   const unitCache = new Map<string, AnalysisUnits | null>()
@@ -529,12 +543,18 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     if (storage === '') err('storage', 'missing', 'is empty (the storage code)')
     if (reportId !== '' && sampleId !== '') {
       let first: number | undefined
-      if (cur.span(iReport)) {
-        const rs = cur.spanStart
-        const re = cur.spanEnd
-        if (cur.span(iSample)) first = seenSpans.add(rs, re, cur.spanStart, cur.spanEnd, line) || undefined
+      let spans = cur.span(iReport)
+      if (spans) {
+        rs = cur.spanStart
+        re = cur.spanEnd
+        spans = cur.span(iSample)
+        if (spans) {
+          ss = cur.spanStart
+          se = cur.spanEnd
+          first = seenRecords.add(hashSpans(source, rs, re, ss, se), cur.start, line, sameCodes) || undefined
+        }
       }
-      if (first === undefined && (!cur.span(iReport) || !cur.span(iSample))) {
+      if (!spans) {
         // a code with doubled quotes, which no span holds
         let samples = seen.get(reportId)
         if (!samples) seen.set(reportId, (samples = new Map()))
