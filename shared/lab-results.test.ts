@@ -80,4 +80,17 @@ describe('checkLabRow', () => {
     )
     expect(stored).toBeGreaterThan(200)
   })
+
+  it('resolves the same codes to the storage of each context when contexts take turns', () => {
+    const a = context()
+    const b: LabCheckContext = { ...context(), storages: new Map([['qbf\u0000p1', { ...storageList[0]!, id: 41 }]]) }
+    const empty: LabCheckContext = { ...context(), farms: new Map(), storages: new Map() }
+    const out = emptyLabResultValues()
+    const ids: (number | string)[] = []
+    for (const ctx of [a, b, empty, a, empty, b, b, a]) {
+      const problems: Problem[] = []
+      ids.push(checkLabRow(labRow({ totalN: 20 }), ctx, problems, out) ? out.storageId : problems[0]!.code)
+    }
+    expect(ids).toEqual([1, 41, 'unknown_farm', 1, 'unknown_farm', 41, 41, 1])
+  })
 })

@@ -108,7 +108,8 @@ export function checkLabRow(row: LabRow, context: LabCheckContext, problems: Pro
   const a = asStored(row, form) ?? normalizeRow(row, form, problems)
   if (!a) return false
 
-  const warnings: Warnings = { list: row.warnings ? [...row.warnings] : null }
+  const warnings = rowWarnings
+  warnings.list = row.warnings ? [...row.warnings] : null
   if (row.species && row.species !== storage.species.toLowerCase()) {
     warn(warnings, 'species', `is ${row.species} but storage ${storage.farmCode}/${storage.code} is recorded as ${storage.species}`)
   }
@@ -150,6 +151,8 @@ export function checkLabRow(row: LabRow, context: LabCheckContext, problems: Pro
 interface Warnings {
   list: string[] | null
 }
+/** the warnings of the row being checked (one object for every row: checkLabRow does not nest) */
+const rowWarnings: Warnings = { list: null }
 
 function warn(w: Warnings, column: string, message: string): void {
   ;(w.list ??= []).push(`${column}: ${message}`)
@@ -227,8 +230,9 @@ function asStored(row: LabRow, form: ManureForm): AsIsAnalysis | null {
   return a
 }
 
-const last: { context: LabCheckContext | null; farm: string; storageCode: string; storage: LabStorage | undefined } = {
+const last: { context: LabCheckContext | null; seen: Map<string, Map<string, LabStorage>> | undefined; farm: string; storageCode: string; storage: LabStorage | undefined } = {
   context: null,
+  seen: undefined,
   farm: '',
   storageCode: '',
   storage: undefined,
@@ -237,11 +241,11 @@ const last: { context: LabCheckContext | null; farm: string; storageCode: string
 const resolved = new WeakMap<LabCheckContext, Map<string, Map<string, LabStorage>>>()
 
 function resolveStorage(row: LabRow, context: LabCheckContext, problems: Problem[]): LabStorage | undefined {
-  let seen = resolved.get(context)
+  let seen = last.context === context ? last.seen : resolved.get(context)
   if (!seen) resolved.set(context, (seen = new Map()))
   let ofFarm = seen.get(row.farm)
   const hit = ofFarm?.get(row.storage)
-  if (hit) return remember(context, row, hit)
+  if (hit) return remember(context, seen, row, hit)
   const farmKey = row.farm.toLowerCase()
   const farm = context.farms.get(farmKey)
   if (!farm) {
@@ -256,11 +260,12 @@ function resolveStorage(row: LabRow, context: LabCheckContext, problems: Problem
   }
   if (!ofFarm) seen.set(row.farm, (ofFarm = new Map()))
   ofFarm.set(row.storage, storage)
-  return remember(context, row, storage)
+  return remember(context, seen, row, storage)
 }
 
-function remember(context: LabCheckContext, row: LabRow, storage: LabStorage): LabStorage {
+function remember(context: LabCheckContext, seen: Map<string, Map<string, LabStorage>>, row: LabRow, storage: LabStorage): LabStorage {
   last.context = context
+  last.seen = seen
   last.farm = row.farm
   last.storageCode = row.storage
   last.storage = storage
