@@ -448,7 +448,7 @@ function PrintSheet({ plan, groups, fieldNames }: { plan: PlanView; groups: Stor
 }
 
 /**
- * Whether to build the applicator sheet (1,000-odd hidden elements for a 200-field plan): not for
+ * Whether to build the applicator sheet (some 2,200 hidden elements for a 200-field plan): not for
  * the first paint, but once the page is idle after it, so that every way of printing finds it
  * (printing to PDF does not announce itself). A print before that builds it at once: `beforeprint`
  * comes before the print layout and the sheet is rendered synchronously inside it; a print media
