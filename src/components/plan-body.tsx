@@ -75,14 +75,64 @@ function suppliedNeedCell(f: PlanField, k: (typeof nutrients)[number]): HTMLElem
   return el('td', short ? 'num font-semibold [&>span]:font-normal' : 'num', fmt(supplied), el('span', 'text-muted', ` / ${fmt(need)}`))
 }
 
-/** One field's row of a rate table: the field with its name and warnings, then its figures. */
-function fieldRow(f: PlanField, g: StorageGroup, fieldNames: Map<string, string | null>): HTMLElement {
+/**
+ * A rate table's warnings: each text that two or more of its fields share is listed once above the
+ * table, numbered, with the fields it concerns (or as for every field of the table); a text only one
+ * field has stays in that field's row.
+ */
+export interface TableWarnings {
+  shared: { text: string; fields: string[]; everyField: boolean }[]
+  /** Per field: its own warnings, and the numbers (from 1) of the shared ones that concern it but not every field. */
+  byField: Map<string, { own: string[]; notes: number[] }>
+}
+
+export function tableWarnings(fields: PlanField[]): TableWarnings {
+  const fieldsOf = new Map<string, string[]>()
+  const texts = fields.map((f) => [...new Set((f.warnings ?? []).map(warningText))])
+  fields.forEach((f, i) => {
+    for (const t of texts[i]!) {
+      const list = fieldsOf.get(t)
+      if (list) list.push(f.field)
+      else fieldsOf.set(t, [f.field])
+    }
+  })
+  const shared: TableWarnings['shared'] = []
+  const number = new Map<string, number>()
+  for (const [text, fs] of fieldsOf) {
+    if (fs.length < 2) continue
+    const everyField = fs.length === fields.length
+    shared.push({ text, fields: fs, everyField })
+    number.set(text, everyField ? 0 : shared.length)
+  }
+  const byField = new Map<string, { own: string[]; notes: number[] }>()
+  fields.forEach((f, i) => {
+    const own = texts[i]!.filter((t) => !number.has(t))
+    const notes = texts[i]!.flatMap((t) => (number.get(t) ? [number.get(t)!] : []))
+    byField.set(f.field, { own, notes })
+  })
+  return { shared, byField }
+}
+
+function noteId(tableId: string, n: number): string {
+  return `${tableId}-note-${n}`
+}
+
+/** One field's row of a rate table: the field with its name, its own warnings and the numbers of the shared ones, then its figures. */
+function fieldRow(f: PlanField, g: StorageGroup, fieldNames: Map<string, string | null>, warnings: TableWarnings, tableId: string): HTMLElement {
   const th = el('th', 'sticky left-0 bg-surface text-left font-semibold', f.field)
   th.setAttribute('scope', 'row')
   const name = fieldNames.get(f.field)
   if (name) th.append(el('span', 'block text-xs font-normal text-muted', name))
-  const warnings = (f.warnings ?? []).map(warningText)
-  if (warnings.length > 0) th.append(el('ul', 'mt-1 max-w-[14rem] text-xs font-normal text-danger', ...warnings.map((w) => el('li', null, `⚠ ${w}`))))
+  const { own, notes } = warnings.byField.get(f.field) ?? { own: [], notes: [] }
+  if (own.length > 0) th.append(el('ul', 'mt-1 max-w-[14rem] text-xs font-normal text-danger', ...own.map((w) => el('li', null, `⚠ ${w}`))))
+  if (notes.length > 0) {
+    const links = notes.flatMap((n, i) => {
+      const a = el('a', 'underline', String(n))
+      a.setAttribute('href', `#${noteId(tableId, n)}`)
+      return i === 0 ? [a] : [', ', a]
+    })
+    th.append(el('span', 'mt-1 block text-xs font-normal text-danger', `⚠ ${notes.length === 1 ? 'note' : 'notes'} `, ...links, ' above'))
+  }
   return el(
     'tr',
     null,
@@ -104,11 +154,11 @@ function fieldRow(f: PlanField, g: StorageGroup, fieldNames: Map<string, string 
  * elements: a 200-field plan's rows hold some 8,000 elements and text nodes, and React's work for
  * each cost more than creating them. The rows change only with the plan.
  */
-function FieldRows({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
+function FieldRows({ g, fieldNames, warnings, tableId }: { g: StorageGroup; fieldNames: Map<string, string | null>; warnings: TableWarnings; tableId: string }) {
   const body = useRef<HTMLTableSectionElement>(null)
   useLayoutEffect(() => {
-    body.current!.replaceChildren(...g.fields.map((f) => fieldRow(f, g, fieldNames)))
-  }, [g, fieldNames])
+    body.current!.replaceChildren(...g.fields.map((f) => fieldRow(f, g, fieldNames, warnings, tableId)))
+  }, [g, fieldNames, warnings, tableId])
   return <tbody ref={body} />
 }
 
@@ -154,30 +204,53 @@ function FieldCards({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string
   )
 }
 
-function FieldTable({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string, string | null> }) {
+/** The warnings two or more fields of a table share, each once, numbered as the rows refer to them. */
+function SharedWarnings({ warnings, tableId, count }: { warnings: TableWarnings; tableId: string; count: number }) {
   return (
-    <div className="overflow-x-auto rounded-md border border-line bg-surface" tabIndex={0} role="region" aria-label={`Field rates from ${g.code}`}>
-      <table className="data min-w-[56rem]">
-        <caption className="sr-only">Fields drawing from {storageTitle(g)}: rate, method and nutrients</caption>
-        <thead>
-          <tr>
-            <th scope="col" className="sticky left-0 z-10">Field</th>
-            <th scope="col" className="num">Area<span className="unit">ac</span></th>
-            <th scope="col">Crop</th>
-            <th scope="col">Method</th>
-            <th scope="col" className="num">Rate<span className="unit">{g.rateUnit}</span></th>
-            <th scope="col">Limited by</th>
-            <th scope="col" className="num">N supplied / need<span className="unit">lb/ac</span></th>
-            <th scope="col" className="num">P₂O₅ supplied / need<span className="unit">lb/ac</span></th>
-            <th scope="col" className="num">K₂O supplied / need<span className="unit">lb/ac</span></th>
-            <th scope="col" className="num">Fertilizer still needed N–P₂O₅–K₂O<span className="unit">lb/ac</span></th>
-            <th scope="col" className="num">Total<span className="unit">{g.amountUnit}</span></th>
-            <th scope="col" className="num">Loads<span className="unit">count</span></th>
-          </tr>
-        </thead>
-        <FieldRows g={g} fieldNames={fieldNames} />
-      </table>
+    <div id={`${tableId}-notes`} className="mb-2 rounded-md border border-line bg-surface p-3 text-sm">
+      <h4 className="font-semibold text-danger">⚠ Warnings shared by fields of this table</h4>
+      <ol className="mt-1 list-decimal space-y-1 pl-6">
+        {warnings.shared.map((w, i) => (
+          <li key={w.text} id={noteId(tableId, i + 1)}>
+            {w.text}{' '}
+            <span className="text-muted">
+              {w.everyField ? `(every field of this table: ${count})` : `(${w.fields.length} fields: ${w.fields.join(', ')})`}
+            </span>
+          </li>
+        ))}
+      </ol>
     </div>
+  )
+}
+
+function FieldTable({ g, fieldNames, tableId }: { g: StorageGroup; fieldNames: Map<string, string | null>; tableId: string }) {
+  const warnings = useMemo(() => tableWarnings(g.fields), [g])
+  return (
+    <>
+      {warnings.shared.length > 0 && <SharedWarnings warnings={warnings} tableId={tableId} count={g.fields.length} />}
+      <div className="overflow-x-auto rounded-md border border-line bg-surface" tabIndex={0} role="region" aria-label={`Field rates from ${g.code}`}>
+        <table className="data min-w-[56rem]" aria-describedby={warnings.shared.length > 0 ? `${tableId}-notes` : undefined}>
+          <caption className="sr-only">Fields drawing from {storageTitle(g)}: rate, method and nutrients</caption>
+          <thead>
+            <tr>
+              <th scope="col" className="sticky left-0 z-10">Field</th>
+              <th scope="col" className="num">Area<span className="unit">ac</span></th>
+              <th scope="col">Crop</th>
+              <th scope="col">Method</th>
+              <th scope="col" className="num">Rate<span className="unit">{g.rateUnit}</span></th>
+              <th scope="col">Limited by</th>
+              <th scope="col" className="num">N supplied / need<span className="unit">lb/ac</span></th>
+              <th scope="col" className="num">P₂O₅ supplied / need<span className="unit">lb/ac</span></th>
+              <th scope="col" className="num">K₂O supplied / need<span className="unit">lb/ac</span></th>
+              <th scope="col" className="num">Fertilizer still needed N–P₂O₅–K₂O<span className="unit">lb/ac</span></th>
+              <th scope="col" className="num">Total<span className="unit">{g.amountUnit}</span></th>
+              <th scope="col" className="num">Loads<span className="unit">count</span></th>
+            </tr>
+          </thead>
+          <FieldRows g={g} fieldNames={fieldNames} warnings={warnings} tableId={tableId} />
+        </table>
+      </div>
+    </>
   )
 }
 
@@ -541,10 +614,10 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
       <section aria-labelledby="rates-title" className="no-print">
         <h2 id="rates-title" className="mb-3 text-xl font-semibold">Field rates</h2>
         <div className="space-y-5">
-          {groups.map((g) => (
+          {groups.map((g, i) => (
             <div key={g.code}>
               <h3 className="mb-2 font-semibold">From {storageTitle(g)}</h3>
-              {narrow ? <FieldCards g={g} fieldNames={fieldNames} /> : <FieldTable g={g} fieldNames={fieldNames} />}
+              {narrow ? <FieldCards g={g} fieldNames={fieldNames} /> : <FieldTable g={g} fieldNames={fieldNames} tableId={`rates-${i + 1}`} />}
             </div>
           ))}
         </div>

@@ -247,4 +247,77 @@ describe('the viewer in a browser', () => {
     expect(seen.older).toEqual(seen.current)
     await page.close()
   })
+
+  it("shows each warning that several fields of a rate table share once above it, and keeps every field's warnings reachable from its row", async () => {
+    // a version of the demo plan whose fields carry a warning for all of them, one for two of them and one for a single field
+    const sqlite = new Database(demo.dbFile)
+    let planId: number
+    let fields: { field: string; storage?: string; warnings?: unknown[] }[]
+    try {
+      const row = sqlite.prepare('select * from plans where id = ?').get(demo.planId) as Record<string, unknown>
+      const result = JSON.parse(String(row.result))
+      const storage = result.fields[0].storage
+      let n = 0
+      fields = result.fields.map((f: { field: string; storage?: string; warnings?: unknown[] }) => {
+        if (f.storage !== storage) return f
+        n++
+        const extra: unknown[] = [{ code: 'test_all', message: 'every field of this storage gets this' }]
+        if (n <= 2) extra.push({ code: 'test_two', message: 'the first two fields get this' })
+        if (n === 1) extra.push('only the first field gets this')
+        return { ...f, warnings: [...(f.warnings ?? []), ...extra] }
+      })
+      expect(n).toBeGreaterThan(2)
+      const version = (sqlite.prepare('select max(version) + 1 as v from plans where farm_id = ? and season = ?').get(row.farm_id, row.season) as { v: number }).v
+      planId = Number(
+        sqlite
+          .prepare('insert into plans (farm_id, season, version, reference_set, reference_set_version, basis, as_of, inputs, result, created_by, created_at) values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)')
+          .run(row.farm_id, row.season, version, row.reference_set, row.reference_set_version, row.basis, row.as_of, row.inputs, JSON.stringify({ ...result, fields }), row.created_by, row.created_at).lastInsertRowid,
+      )
+    } finally {
+      sqlite.close()
+    }
+    const page = await freshPage()
+    await signIn(page, demo.advisor)
+    await page.getByRole('heading', { name: 'Farms', level: 1 }).waitFor()
+    await page.goto(`${server.url}/plans/${planId}`)
+    await page.getByRole('heading', { name: 'Field rates' }).waitFor()
+    const rates = page.locator('section[aria-labelledby="rates-title"]')
+    await rates.locator('tbody tr').first().waitFor()
+    const tables = await rates.evaluate((section) =>
+      [...section.querySelectorAll('table')].map((t) => {
+        const notes = t.getAttribute('aria-describedby') ? document.getElementById(t.getAttribute('aria-describedby')!) : null
+        return {
+          notes: notes ? [...notes.querySelectorAll('li')].map((li) => ({ id: li.id, text: li.textContent ?? '' })) : [],
+          rows: [...t.tBodies[0]!.rows].map((r) => ({
+            field: r.cells[0]!.firstChild!.textContent ?? '',
+            own: [...r.cells[0]!.querySelectorAll('li')].map((li) => li.textContent ?? ''),
+            links: [...r.cells[0]!.querySelectorAll('a')].map((a) => a.getAttribute('href')!.slice(1)),
+          })),
+        }
+      }),
+    )
+    const first = tables[0]!
+    expect(first.notes.filter((n) => n.text.startsWith('every field of this storage gets this') && n.text.includes('every field of this table'))).toHaveLength(1)
+    const firstTwo = fields.filter((f) => f.storage === fields[0]!.storage).slice(0, 2).map((f) => f.field)
+    expect(first.notes.filter((n) => n.text.startsWith('the first two fields get this') && n.text.includes(`2 fields: ${firstTwo.join(', ')}`))).toHaveLength(1)
+    expect(first.rows[0]!.own).toContain('⚠ only the first field gets this')
+    expect(first.rows.flatMap((r) => r.own).filter((w) => w.includes('fields get this') || w.includes('every field'))).toEqual([])
+    // every warning of every field: in its own row, in a note of its table that the row links to, or in one for every field
+    const forEvery = first.notes.find((n) => n.text.startsWith('every field of this storage gets this'))!
+    expect(first.rows.flatMap((r) => r.links).filter((id) => id === forEvery.id)).toEqual([])
+    const byField = new Map(tables.flatMap((t) => t.rows.map((r) => [r.field, { row: r, notes: t.notes }] as const)))
+    const warningText = (w: unknown) => (typeof w === 'string' ? w : String((w as { message: unknown }).message))
+    let checked = 0
+    for (const f of fields) {
+      const shown = byField.get(f.field)!
+      for (const w of (f.warnings ?? []).map(warningText)) {
+        const inNotes = shown.notes.filter((n) => (shown.row.links.includes(n.id) || n.text.includes('(every field of this table')) && n.text.startsWith(w))
+        expect(shown.row.own.includes(`⚠ ${w}`) || inNotes.length === 1, `${f.field}: ${w}`).toBe(true)
+        checked++
+      }
+    }
+    expect(checked).toBeGreaterThan(fields.length)
+    await rates.screenshot({ path: join(artifacts, 'plan-rate-warnings.png') })
+    await page.close()
+  })
 })
