@@ -121,13 +121,20 @@ export interface LabFileMeta {
 /**
  * A big file into a table that holds fewer results than the file brings: inserting into the
  * table alone and then building its indexes in one sorted pass costs less than keeping the indexes
- * up to date row by row (random inserts into two B-trees). A result row is 100–200 bytes in a
+ * up to date row by row (random inserts into a B-tree). A result row is 100–200 bytes in a
  * lab file, so bytes / 200 is a low estimate of the file's rows. Only for a connection that does not
  * read lab_results during the import (the writer thread): without its indexes the table is scanned.
  */
 export function rebuildsIndexes(bytes: number, storedResults: number): boolean {
   return bytes >= 4 * 1024 * 1024 && bytes / 200 >= storedResults
 }
+
+/**
+ * The indexes built again: results by storage, whose keys arrive in no order. The index by report
+ * and sample is kept up to date as the rows go in: a lab numbers its reports in sequence, so its
+ * keys mostly append, which costs less than sorting them all again.
+ */
+const rebuiltIndexes = new Set(['lab_results_storage_idx'])
 
 export interface LabFileCounts {
   /** rows in the file */
@@ -196,13 +203,15 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
     close()
     throw error
   }
+  // every result of the file is stored at the moment of its import run (one clock reading, not one per row)
+  const storedAt = sqlite.prepare('select created_at from import_runs where id = ?').pluck().get(runId) as string
   // the indexes to build again before the commit (inside the transaction: a failure or a crash
   // rolls their removal back with the rows)
   let indexes: string[] = []
   if (options.mayRebuildIndexes && meta.bytes !== undefined) {
     const stored = (sqlite.prepare('select max(id) from lab_results').pluck().get() as number | null) ?? 0
     if (rebuildsIndexes(meta.bytes, stored)) {
-      const found = sqlite.prepare(`select name, sql from sqlite_master where type = 'index' and tbl_name = 'lab_results' and sql is not null`).all() as { name: string; sql: string }[]
+      const found = (sqlite.prepare(`select name, sql from sqlite_master where type = 'index' and tbl_name = 'lab_results' and sql is not null`).all() as { name: string; sql: string }[]).filter((ix) => rebuiltIndexes.has(ix.name))
       try {
         for (const ix of found) sqlite.exec(`drop index "${ix.name.replace(/"/g, '""')}"`)
       } catch (error) {
@@ -214,7 +223,8 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
   }
 
   // One insert statement per combination of the values that repeat (form, species, basis, units):
-  // they and the import run are written into its SQL as literals, so each row binds 19 values, not 25.
+  // they, the import run and its time are written into its SQL as literals, so each row binds 19
+  // values, not 25.
   const literal = (text: string) => `'${text.replace(/'/g, "''")}'`
   const inserts = new Map<string, SQLite.Statement>()
   const insertFor = (form: string, species: string, basis: string, units: string, perUnit: string) => {
@@ -224,9 +234,9 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
       statement = sqlite.prepare(
         `insert into lab_results (lab_report_id, storage_id, sampling_event_id, report_number, sample_code, sampled_on, line,
            reported, qualifiers, dry_matter_pct, total_n, ammonium_n, organic_n, p2o5, k2o, sulfur, ph, notes, warnings,
-           form, species, basis, units, per_unit, import_run_id)
+           form, species, basis, units, per_unit, import_run_id, created_at)
          values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?,
-           ${literal(form)}, ${literal(species)}, ${literal(basis)}, ${literal(units)}, ${literal(perUnit)}, ${runId})`,
+           ${literal(form)}, ${literal(species)}, ${literal(basis)}, ${literal(units)}, ${literal(perUnit)}, ${runId}, ${literal(storedAt)})`,
       )
       inserts.set(key, statement)
     }
