@@ -204,11 +204,15 @@ function FieldCards({ g, fieldNames }: { g: StorageGroup; fieldNames: Map<string
   )
 }
 
-/** The warnings two or more fields of a table share, each once, numbered as the rows refer to them. */
+/**
+ * The warnings two or more fields of a table share, each once, numbered as the rows refer to them.
+ * The table is described by the list's title only, so that a screen reader announces the list
+ * without reading every note each time the table is entered.
+ */
 function SharedWarnings({ warnings, tableId, count }: { warnings: TableWarnings; tableId: string; count: number }) {
   return (
-    <div id={`${tableId}-notes`} className="mb-2 rounded-md border border-line bg-surface p-3 text-sm">
-      <h4 className="font-semibold text-danger">⚠ Warnings shared by fields of this table</h4>
+    <div className="mb-2 rounded-md border border-line bg-surface p-3 text-sm">
+      <h4 id={`${tableId}-notes`} className="font-semibold text-danger">⚠ Warnings shared by fields of this table</h4>
       <ol className="mt-1 list-decimal space-y-1 pl-6">
         {warnings.shared.map((w, i) => (
           <li key={w.text} id={noteId(tableId, i + 1)}>

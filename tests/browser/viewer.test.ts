@@ -285,7 +285,8 @@ describe('the viewer in a browser', () => {
     await rates.locator('tbody tr').first().waitFor()
     const tables = await rates.evaluate((section) =>
       [...section.querySelectorAll('table')].map((t) => {
-        const notes = t.getAttribute('aria-describedby') ? document.getElementById(t.getAttribute('aria-describedby')!) : null
+        // the table is described by the title of the list of its shared warnings
+        const notes = t.getAttribute('aria-describedby') ? document.getElementById(t.getAttribute('aria-describedby')!)!.parentElement : null
         return {
           notes: notes ? [...notes.querySelectorAll('li')].map((li) => ({ id: li.id, text: li.textContent ?? '' })) : [],
           rows: [...t.tBodies[0]!.rows].map((r) => ({
