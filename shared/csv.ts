@@ -41,127 +41,23 @@ export function detectDelimiter(text: string): string {
 
 /** Reads CSV text into records. Never throws; a malformed quote ends reading with a problem. */
 export function parseCsv(input: string, options: { delimiter?: string } = {}): CsvRecords {
-  const text = input.charCodeAt(0) === 0xfeff ? input.slice(1) : input
-  const delimiter = options.delimiter ?? detectDelimiter(text)
-  const d = delimiter.charCodeAt(0)
+  const delimiter = options.delimiter ?? detectDelimiter(input.charCodeAt(0) === 0xfeff ? input.slice(1) : input)
+  const cursor = new CsvCursor(input, delimiter)
   const records: string[][] = []
   const lines: number[] = []
-  const n = text.length
-  let i = 0
-  let line = 1
-
-  while (i < n) {
-    const startLine = line
-    const cells: string[] = []
-    let endOfRecord = false
-    while (!endOfRecord) {
-      if (i < n && text.charCodeAt(i) === QUOTE) {
-        // quoted field
-        let value = ''
-        let from = i + 1
-        let j = from
-        for (;;) {
-          const q = text.indexOf('"', j)
-          if (q === -1) {
-            return {
-              records,
-              lines,
-              delimiter,
-              problem: {
-                code: 'csv_quote_not_closed',
-                line: startLine,
-                message: `a quoted cell opened on line ${startLine} is never closed (add the closing ")`,
-              },
-            }
-          }
-          for (let k = j; k < q; k++) {
-            const c = text.charCodeAt(k)
-            if (c === LF) line++
-            else if (c === CR && text.charCodeAt(k + 1) !== LF) line++
-          }
-          if (text.charCodeAt(q + 1) === QUOTE) {
-            value += text.slice(from, q + 1)
-            from = q + 2
-            j = from
-            continue
-          }
-          value += text.slice(from, q)
-          i = q + 1
-          break
-        }
-        cells.push(value)
-        const c = i < n ? text.charCodeAt(i) : -1
-        if (c === d) {
-          i++
-        } else if (c === LF || c === CR || c === -1) {
-          endOfRecord = true
-        } else {
-          return {
-            records,
-            lines,
-            delimiter,
-            problem: {
-              code: 'csv_text_after_quote',
-              line,
-              message: `unexpected text after a closing quote in cell ${cells.length} (a quote inside a cell must be doubled: "")`,
-            },
-          }
-        }
-      } else {
-        // unquoted field: up to the next delimiter or line end
-        let j = i
-        let c = -1
-        for (; j < n; j++) {
-          c = text.charCodeAt(j)
-          if (c === d || c === LF || c === CR) break
-          if (c === QUOTE) {
-            return {
-              records,
-              lines,
-              delimiter,
-              problem: {
-                code: 'csv_stray_quote',
-                line,
-                message: `a quote inside unquoted cell ${cells.length + 1} (quote the whole cell and double the quote: "")`,
-              },
-            }
-          }
-        }
-        cells.push(text.slice(i, j))
-        i = j
-        if (j >= n) {
-          endOfRecord = true
-        } else if (c === d) {
-          i++
-        } else {
-          endOfRecord = true
-        }
-      }
-    }
-    // consume the line end
-    if (i < n) {
-      const c = text.charCodeAt(i)
-      if (c === CR) {
-        i += text.charCodeAt(i + 1) === LF ? 2 : 1
-        line++
-      } else if (c === LF) {
-        i++
-        line++
-      }
-    }
-    if (!(cells.length === 1 && cells[0] === '')) {
-      records.push(cells)
-      lines.push(startLine)
-    }
+  while (cursor.next()) {
+    const cells: string[] = new Array(cursor.count)
+    for (let k = 0; k < cursor.count; k++) cells[k] = cursor.cell(k)
+    records.push(cells)
+    lines.push(cursor.line)
   }
-  return { records, lines, delimiter }
+  return cursor.problem ? { records, lines, delimiter, problem: cursor.problem } : { records, lines, delimiter }
 }
 
 /**
- * The same reader as parseCsv, one record at a time and without a string per cell: `next()` reads
- * the next record (leaving out blank lines, as parseCsv does) and leaves its cells as offsets into
- * the text, so that a caller slices only the cells it keeps and reads numbers from the characters.
- * Records, lines and problems are exactly those of parseCsv (checked in shared/csv.test.ts).
+ * The reader behind parseCsv, one record at a time and without a string per cell: `next()` reads
+ * the next record (leaving out blank lines) and leaves its cells as offsets into the text, so that
+ * a caller slices only the cells it keeps and reads numbers from the characters.
  * Pure; never throws.
  */
 export class CsvCursor {
