@@ -1,6 +1,5 @@
 import { wrapDatabase, type OpenDatabase } from '../../shared/db/open-database.ts'
-import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
-import { openAdvisorSqlite } from './advisor-sqlite.ts'
+import { openAdvisorSqlite, withAdvisorSqlite } from './advisor-sqlite.ts'
 
 /**
  * Opens the database for the advisor commands (plan, plans, export, records, record imports) with
@@ -12,16 +11,9 @@ export function openAdvisorDb(file: string, mode: 'write' | 'read' = 'write'): O
 }
 
 /**
- * Runs body with an open database and closes it afterwards, whatever happens. SQLite failures with
- * an outside cause (locked, disk full, I/O, corrupt) become AppErrors with a message for the user.
+ * Runs body with an open database and closes it afterwards, whatever happens (withAdvisorSqlite,
+ * with Kysely over the connection).
  */
 export async function withAdvisorDb<T>(file: string, mode: 'write' | 'read', body: (opened: OpenDatabase) => Promise<T> | T): Promise<T> {
-  const opened = openAdvisorDb(file, mode)
-  try {
-    return await body(opened)
-  } catch (error) {
-    throw appErrorFromSqlite(error, `${mode === 'write' ? 'cannot write' : 'cannot read'} ${file}`) ?? error
-  } finally {
-    await opened.close()
-  }
+  return withAdvisorSqlite(file, mode, (sqlite) => body(wrapDatabase(file, sqlite)))
 }

@@ -1,5 +1,4 @@
 import type SQLite from 'better-sqlite3'
-import { AppError } from '../errors.ts'
 import type { LabHistory, LabStorage } from '../lab-results.ts'
 
 /**

@@ -42,6 +42,14 @@ function stored(db: string) {
   }
 }
 
+/** A trigger that makes the insert of one sample's result fail, as a failing write would. */
+function failOnSample(db: string, sampleCode: string, message: string) {
+  const s = new SQLite(db)
+  s.exec(`create trigger fail_sample before insert on lab_results when new.sample_code = '${sampleCode}'
+    begin select raise(abort, '${message}'); end;`)
+  s.close()
+}
+
 describe('the lab writer thread', () => {
   it('stores exactly what the import thread stores, for a big file whose indexes are built again after the rows', async () => {
     expect(rebuildsIndexes(statSync(big).size, 0)).toBe(true)
@@ -64,10 +72,7 @@ describe('the lab writer thread', () => {
   it('names the line of the row whose insert failed in the writer thread, and writes nothing', async () => {
     const db = tmp.path('row-37.db')
     copyFileSync(template, db)
-    const s = new SQLite(db)
-    s.exec(`create trigger fail_37 before insert on lab_results when new.sample_code = 'CRA-26-K-S37'
-      begin select raise(abort, 'simulated write failure at row 37'); end;`)
-    s.close()
+    failOnSample(db, 'CRA-26-K-S37', 'simulated write failure at row 37')
     const file = tmp.path('small.csv')
     writeLabFile(file, 'CRA-26-K', 200)
     const before = dumpDatabase(db)
@@ -83,10 +88,7 @@ describe('the lab writer thread', () => {
   it('leaves the database as it was, indexes included, when the last row of a big file fails to write', async () => {
     const db = tmp.path('fails.db')
     copyFileSync(template, db)
-    const s = new SQLite(db)
-    s.exec(`create trigger fail_last before insert on lab_results when new.sample_code = 'CRA-26-BIG-S${bigRows}'
-      begin select raise(abort, 'simulated write failure at the last row'); end;`)
-    s.close()
+    failOnSample(db, `CRA-26-BIG-S${bigRows}`, 'simulated write failure at the last row')
     const before = dumpDatabase(db)
     const r = await runCli(['--db', db, 'labs', 'import', big])
     expect(r.exitCode).not.toBe(0)
