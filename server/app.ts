@@ -75,7 +75,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/share', shareRoutes({ db, shareKey: deps.keys.share, plans, now, perMinute: deps.shareRequestsPerMinute ?? 60 }))
   api.use(apiNotFound)
   app.use('/api', api)
-  app.use(webRoutes(deps.webDir))
+  app.use(webRoutes(deps.webDir, { db, sqlite, sessions, plans, log }))
   app.use(errorMiddleware(log))
   return app
 }

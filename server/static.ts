@@ -3,6 +3,7 @@ import { extname, join } from 'node:path'
 import { gzipSync } from 'node:zlib'
 import { fileURLToPath } from 'node:url'
 import express, { Router } from 'express'
+import { findServerEntry, planPageRenderer, type PlanPageDeps } from './plan-page.ts'
 import { acceptsGzip } from './routes/plans.ts'
 import { shareHeaders } from './routes/share.ts'
 
@@ -79,6 +80,12 @@ export function pagePreloads(path: string, modules: PageModules = {}): string | 
   return links.join(', ')
 }
 
+/** The Link header of a page the server rendered: its own code only, as its answers are in the page. */
+export function renderedPagePreloads(modules: PageModules, page: keyof PageModules): string | null {
+  const links = (modules[page] ?? []).map((file) => `<${file}>; rel=modulepreload`)
+  return links.length > 0 ? links.join(', ') : null
+}
+
 const compressible = new Set(['.js', '.css', '.svg', '.json', '.html', '.map', '.txt'])
 
 /** The hashed build output, held in memory with a gzipped copy of each text file (they never change while serving). */
@@ -93,8 +100,11 @@ function loadAssets(dir: string): Map<string, Asset> {
   return out
 }
 
-/** Serves the client: hashed assets cached for a year, every other path answered by index.html (client routing). */
-export function webRoutes(webDir: string | null): Router {
+/**
+ * Serves the client: hashed assets cached for a year, every other path answered by index.html
+ * (client routing). With `planPage`, a signed-in plan page comes rendered (server/plan-page.ts).
+ */
+export function webRoutes(webDir: string | null, planPage?: PlanPageDeps): Router {
   const router = Router()
   if (!webDir) {
     router.get('/{*splat}', (_req, res) => {
@@ -122,7 +132,21 @@ export function webRoutes(webDir: string | null): Router {
     if (!res.get('Cache-Control')) res.set('Cache-Control', 'no-cache')
     res.type('html').send(index)
   }
-  const sendPage: express.RequestHandler = (req, res, next) => {
+  const renderPlanPage = planPage ? planPageRenderer(planPage, { index, entryFile: findServerEntry(webDir) }) : null
+  const sendPage: express.RequestHandler = async (req, res, next) => {
+    const plan = /^\/plans\/([1-9]\d{0,11})$/.exec(req.path)
+    // the same address answers differently with and without a session
+    if (plan) res.set('Vary', 'Cookie')
+    const rendered = plan && renderPlanPage ? await renderPlanPage(req, plan[1]!) : null
+    if (rendered) {
+      const preloads = renderedPagePreloads(modules, 'plan')
+      if (preloads) res.set('Link', preloads)
+      // one user's page: never stored by a browser's or a proxy's cache
+      res.set('Cache-Control', 'private, no-store').set('Vary', 'Cookie, Accept-Encoding').type('html')
+      if (acceptsGzip(req.headers['accept-encoding'])) res.set('Content-Encoding', 'gzip').send(rendered.gzip)
+      else res.send(rendered.body)
+      return
+    }
     const preloads = pagePreloads(req.path, modules)
     if (preloads) res.set('Link', preloads)
     sendIndex(req, res, next)

@@ -2,10 +2,10 @@ import { Router } from 'express'
 import type { Kysely } from 'kysely'
 import type { PlanVersionsResponse } from '../../shared/api-types.ts'
 import type { Database } from '../../shared/db/schema.ts'
-import { canSeeFarm, findPlanVersions } from '../../shared/db/viewer-queries.ts'
+import { canSeeFarm, findPlanVersions, type Viewer } from '../../shared/db/viewer-queries.ts'
 import { AppError } from '../../shared/errors.ts'
 import type { Sessions } from '../auth.ts'
-import type { PlanCache } from '../plan-cache.ts'
+import type { CachedPlan, PlanCache } from '../plan-cache.ts'
 
 /** True when the client takes gzip (and has not refused it with q=0). */
 export function acceptsGzip(header: string | undefined): boolean {
@@ -23,18 +23,23 @@ export function parsePlanId(text: string): number | null {
   return /^[1-9]\d{0,11}$/.test(text) ? Number(text) : null
 }
 
+/**
+ * The plan with this id from the path, when this viewer may read it: the one rule for a plan's API
+ * answers and its server-rendered page (server/plan-page.ts). Throws `not_found` otherwise.
+ */
+export async function findVisiblePlan(plans: PlanCache, id: string, viewer: Viewer): Promise<CachedPlan> {
+  const planId = parsePlanId(id)
+  const plan = planId === null ? undefined : await plans.get(planId)
+  // another farm's plan answers exactly like a missing one
+  if (!plan || !canSeeFarm(viewer, { id: plan.owner.farmId, organizationId: plan.owner.organizationId })) {
+    throw new AppError('not_found', `no plan ${id.slice(0, 24)}`)
+  }
+  return plan
+}
+
 export function planRoutes({ db, sessions, plans }: { db: Kysely<Database>; sessions: Sessions; plans: PlanCache }): Router {
   const router = Router()
-
-  async function visiblePlan(id: string, viewer: Parameters<typeof canSeeFarm>[0]) {
-    const planId = parsePlanId(id)
-    const plan = planId === null ? undefined : await plans.get(planId)
-    // another farm's plan answers exactly like a missing one
-    if (!plan || !canSeeFarm(viewer, { id: plan.owner.farmId, organizationId: plan.owner.organizationId })) {
-      throw new AppError('not_found', `no plan ${id.slice(0, 24)}`)
-    }
-    return plan
-  }
+  const visiblePlan = (id: string, viewer: Viewer) => findVisiblePlan(plans, id, viewer)
 
   router.get('/:id', async (req, res) => {
     const { viewer } = await sessions.require(req)

@@ -3,16 +3,18 @@ import { useSyncExternalStore } from 'react'
 import { fmt, label, num, nutrientColours, nutrients } from './format.ts'
 
 const narrowQuery = '(max-width: 640px)'
+const subscribeNarrow = (onChange: () => void) => {
+  const m = window.matchMedia(narrowQuery)
+  m.addEventListener('change', onChange)
+  return () => m.removeEventListener('change', onChange)
+}
+const narrowNow = () => window.matchMedia(narrowQuery).matches
+// the server renders the wide page; a phone hydrates that, then switches
+const narrowOnServer = () => false
+
 /** True on a phone-sized screen, so charts draw with fewer, larger units instead of shrinking. */
 export function useNarrow(): boolean {
-  return useSyncExternalStore(
-    (onChange) => {
-      const m = window.matchMedia(narrowQuery)
-      m.addEventListener('change', onChange)
-      return () => m.removeEventListener('change', onChange)
-    },
-    () => window.matchMedia(narrowQuery).matches,
-  )
+  return useSyncExternalStore(subscribeNarrow, narrowNow, narrowOnServer)
 }
 
 function niceStep(max: number, ticks: number): number {

@@ -1,4 +1,4 @@
-import { useEffect, useLayoutEffect, useMemo, useRef, useState, type ReactNode } from 'react'
+import { useEffect, useMemo, useState, type ReactNode } from 'react'
 import { flushSync } from 'react-dom'
 import type { PlanField, PlanStorage, PlanView } from '../../shared/api-types.ts'
 import { computePlanSources } from '../../shared/plan-sources.ts'
@@ -6,7 +6,7 @@ import { Cautions } from './cautions.tsx'
 import { BudgetBar, SupplyChart, useNarrow } from './charts.tsx'
 import { amountUnit, date, dateTime, fmt, label, loadsOf, num, nutrients, rateDigits, warningText } from './format.ts'
 
-interface StorageGroup {
+export interface StorageGroup {
   code: string
   name: string | null
   kind: string | null
@@ -59,20 +59,23 @@ function storageTitle(g: StorageGroup): string {
   return g.code ? `${g.code}${g.name ? ` · ${g.name}` : ''}` : 'No storage named'
 }
 
-/** An element with a class and children, for the rows built without React (FieldRows). */
-function el(tag: string, className: string | null, ...children: (Node | string)[]): HTMLElement {
-  const e = document.createElement(tag)
-  if (className) e.className = className
-  e.append(...children)
-  return e
+const escapes: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' }
+/** Text or an attribute value made safe for HTML. */
+export function escapeHtml(text: string): string {
+  return text.replace(/[&<>"]/g, (c) => escapes[c]!)
+}
+
+/** An element's HTML with an optional class; the children are HTML already (text goes through escapeHtml). */
+function el(tag: string, className: string | null, ...children: string[]): string {
+  return `<${tag}${className ? ` class="${className}"` : ''}>${children.join('')}</${tag}>`
 }
 
 /** Supplied / need in one cell: bold supplied when it falls short of the need. */
-function suppliedNeedCell(f: PlanField, k: (typeof nutrients)[number]): HTMLElement {
+function suppliedNeedCell(f: PlanField, k: (typeof nutrients)[number]): string {
   const supplied = num(f.supplied?.[k])
   const need = num(f.need?.[k])
   const short = supplied !== null && need !== null && supplied + 0.5 < need
-  return el('td', short ? 'num font-semibold [&>span]:font-normal' : 'num', fmt(supplied), el('span', 'text-muted', ` / ${fmt(need)}`))
+  return el('td', short ? 'num font-semibold [&amp;&gt;span]:font-normal' : 'num', fmt(supplied), el('span', 'text-muted', ` / ${fmt(need)}`))
 }
 
 /**
@@ -117,31 +120,26 @@ function noteId(tableId: string, n: number): string {
   return `${tableId}-note-${n}`
 }
 
-/** One field's row of a rate table: the field with its name, its own warnings and the numbers of the shared ones, then its figures. */
-function fieldRow(f: PlanField, g: StorageGroup, fieldNames: Map<string, string | null>, warnings: TableWarnings, tableId: string): HTMLElement {
-  const th = el('th', 'sticky left-0 bg-surface text-left font-semibold', f.field)
-  th.setAttribute('scope', 'row')
+/** One field's row of a rate table, as HTML: the field with its name, its own warnings and the numbers of the shared ones, then its figures. */
+function fieldRowHtml(f: PlanField, g: StorageGroup, fieldNames: Map<string, string | null>, warnings: TableWarnings, tableId: string): string {
+  const head = [escapeHtml(f.field)]
   const name = fieldNames.get(f.field)
-  if (name) th.append(el('span', 'block text-xs font-normal text-muted', name))
+  if (name) head.push(el('span', 'block text-xs font-normal text-muted', escapeHtml(name)))
   const { own, notes } = warnings.byField.get(f.field) ?? { own: [], notes: [] }
-  if (own.length > 0) th.append(el('ul', 'mt-1 max-w-[14rem] text-xs font-normal text-danger', ...own.map((w) => el('li', null, `⚠ ${w}`))))
+  if (own.length > 0) head.push(el('ul', 'mt-1 max-w-[14rem] text-xs font-normal text-danger', ...own.map((w) => el('li', null, `⚠ ${escapeHtml(w)}`))))
   if (notes.length > 0) {
-    const links = notes.flatMap((n, i) => {
-      const a = el('a', 'underline', String(n))
-      a.setAttribute('href', `#${noteId(tableId, n)}`)
-      return i === 0 ? [a] : [', ', a]
-    })
-    th.append(el('span', 'mt-1 block text-xs font-normal text-danger', `⚠ ${notes.length === 1 ? 'note' : 'notes'} `, ...links, ' above'))
+    const links = notes.map((n) => `<a class="underline" href="#${escapeHtml(noteId(tableId, n))}">${n}</a>`).join(', ')
+    head.push(el('span', 'mt-1 block text-xs font-normal text-danger', `⚠ ${notes.length === 1 ? 'note' : 'notes'} `, links, ' above'))
   }
   return el(
     'tr',
     null,
-    th,
+    `<th class="sticky left-0 bg-surface text-left font-semibold" scope="row">${head.join('')}</th>`,
     el('td', 'num', fmt(f.acres, 1)),
-    el('td', null, label(f.crop)),
-    el('td', null, label(f.method)),
+    el('td', null, escapeHtml(label(f.crop))),
+    el('td', null, escapeHtml(label(f.method))),
     el('td', 'num font-semibold', fmt(f.rate, rateDigits(g.rateUnit))),
-    el('td', null, label(f.limited_by)),
+    el('td', null, escapeHtml(label(f.limited_by))),
     ...nutrients.map((k) => suppliedNeedCell(f, k)),
     el('td', 'num', nutrients.map((k) => fmt(f.supplemental?.[k])).join('–')),
     el('td', 'num', fmt(f.total_manure)),
@@ -150,16 +148,22 @@ function fieldRow(f: PlanField, g: StorageGroup, fieldNames: Map<string, string 
 }
 
 /**
- * The body of a rate table, built with DOM calls before the first paint instead of as React
- * elements: a 200-field plan's rows hold some 8,000 elements and text nodes, and React's work for
- * each cost more than creating them. The rows change only with the plan.
+ * The rows of a rate table as one HTML string, the same on the server and in the browser: a
+ * 200-field plan's rows hold some 8,000 elements and text nodes, and React's work for each cost
+ * more than the browser's parser takes for the markup. Everything from the plan is escaped here.
+ */
+export function fieldRowsHtml(g: StorageGroup, fieldNames: Map<string, string | null>, warnings: TableWarnings, tableId: string): string {
+  return g.fields.map((f) => fieldRowHtml(f, g, fieldNames, warnings, tableId)).join('')
+}
+
+/**
+ * The body of a rate table, set as inner HTML rather than as React elements. React does not look
+ * inside it when it hydrates a server-rendered page, and sets it again only when the string
+ * changes, so the rows the server sent stay the same nodes.
  */
 function FieldRows({ g, fieldNames, warnings, tableId }: { g: StorageGroup; fieldNames: Map<string, string | null>; warnings: TableWarnings; tableId: string }) {
-  const body = useRef<HTMLTableSectionElement>(null)
-  useLayoutEffect(() => {
-    body.current!.replaceChildren(...g.fields.map((f) => fieldRow(f, g, fieldNames, warnings, tableId)))
-  }, [g, fieldNames, warnings, tableId])
-  return <tbody ref={body} />
+  const html = useMemo(() => fieldRowsHtml(g, fieldNames, warnings, tableId), [g, fieldNames, warnings, tableId])
+  return <tbody dangerouslySetInnerHTML={{ __html: html }} />
 }
 
 /** The same rows as cards, for a phone at the field edge. */
@@ -529,13 +533,18 @@ function PrintSheet({ plan, groups, fieldNames }: { plan: PlanView; groups: Stor
  * the first paint, but once the page is idle after it, so that every way of printing finds it
  * (printing to PDF does not announce itself). A print before that builds it at once: `beforeprint`
  * comes before the print layout and the sheet is rendered synchronously inside it; a print media
- * query that starts to match (print emulation, some previews) builds it too.
+ * query that starts to match (print emulation, some previews) builds it too, and so does one that
+ * already matches when the page starts (after hydration: the server never renders the sheet).
  */
 function usePrintSheet(painted: boolean): boolean {
-  const [wanted, setWanted] = useState(() => typeof window !== 'undefined' && window.matchMedia?.('print').matches === true)
+  const [wanted, setWanted] = useState(false)
   useEffect(() => {
     if (wanted) return
     const print = window.matchMedia('print')
+    if (print.matches) {
+      setWanted(true)
+      return
+    }
     const now = () => flushSync(() => setWanted(true))
     const onChange = (e: MediaQueryListEvent) => e.matches && now()
     window.addEventListener('beforeprint', now)

@@ -1,0 +1,58 @@
+import type { QueryClient } from '@tanstack/react-query'
+import type { HydrationState } from 'react-router'
+import type { PlanVersionsResponse, PlanView, SessionResponse } from '../shared/api-types.ts'
+import { planQueryOptions, planVersionsQueryOptions, sessionQueryOptions } from './api/queries.ts'
+
+/**
+ * What a server-rendered page was rendered from, sent beside its markup so that the browser starts
+ * from the same answers (and hydrates the same page) without asking for them again. Each answer is
+ * exactly what its API path returns.
+ */
+export interface PageData {
+  session: SessionResponse
+  /** The plan id as it appears in the page's path. */
+  planId: string
+  plan: PlanView
+  versions: PlanVersionsResponse
+  /** The router's loader data of the server's render (createBrowserRouter's hydrationData). */
+  router: HydrationState
+}
+
+/** The id of the `<script type="application/json">` element that holds the page's data. */
+export const pageDataId = 'pitside-page-data'
+
+// JSON may hold any text; in a <script> element "</script>", "<!--" and the line separators must not
+// appear as such. Escaped as JSON escapes, JSON.parse reads the same value back.
+const unsafe: Record<string, string> = { '<': '\\u003c', '>': '\\u003e', '&': '\\u0026', '\u2028': '\\u2028', '\u2029': '\\u2029' }
+
+/** JSON text made safe to place inside a `<script>` element (the same value for JSON.parse). */
+export function escapeJsonForScript(json: string): string {
+  return json.replace(/[<>&\u2028\u2029]/g, (c) => unsafe[c]!)
+}
+
+/**
+ * The data element of a page, from the JSON texts of its parts (the plan's text is passed as it is
+ * stored for the API, so that it is not serialized again). Not executable: the CSP allows no inline script.
+ */
+export function pageDataScript(parts: { session: string; planId: string; plan: string; versions: string; router: string }): string {
+  const json = `{"session":${parts.session},"planId":${JSON.stringify(parts.planId)},"plan":${parts.plan},"versions":${parts.versions},"router":${parts.router}}`
+  return `<script type="application/json" id="${pageDataId}">${escapeJsonForScript(json)}</script>`
+}
+
+/** The page's data when the server rendered it, else null (a page the browser renders itself). */
+export function readPageData(doc: Document): PageData | null {
+  const text = doc.getElementById(pageDataId)?.textContent
+  if (!text) return null
+  try {
+    return JSON.parse(text) as PageData
+  } catch {
+    return null
+  }
+}
+
+/** Puts a page's answers into a query cache under the keys the pages ask for them with (src/api/queries.ts). */
+export function seedQueries(queryClient: QueryClient, data: PageData): void {
+  queryClient.setQueryData(sessionQueryOptions().queryKey, data.session)
+  queryClient.setQueryData(planQueryOptions(data.planId).queryKey, data.plan)
+  queryClient.setQueryData(planVersionsQueryOptions(data.planId).queryKey, data.versions)
+}
