@@ -1,4 +1,5 @@
 import type SQLite from 'better-sqlite3'
+import { statSync } from 'node:fs'
 import { readFile } from 'node:fs/promises'
 import {
   currentLabResultsReader,
@@ -9,7 +10,7 @@ import {
   labResultSignature,
 } from '../../shared/db/labs.ts'
 import { LabRowWriteError } from '../../shared/db/lab-write.ts'
-import { startLabFileWriter, type LabFileWriter } from '../../shared/db/lab-writer.ts'
+import { spareLabWriter, startLabFileWriter, type LabFileWriter, type SpareLabWriter } from '../../shared/db/lab-writer.ts'
 import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
 import { decodeText } from '../../shared/decode-text.ts'
 import { AppError, formatProblems, isAppError, type ErrorCode, type Problem } from '../../shared/errors.ts'
@@ -94,6 +95,24 @@ function emptySummary(file: string, sha256: string | null): LabFileSummary {
  */
 export async function importLabFiles(deps: LabImportDeps, files: readonly string[], options: LabImportOptions = {}): Promise<LabImportSummary> {
   const { sqlite } = deps
+  // the first file's writer thread (when it is big) starts now and loads while the file is read
+  const spare = { writer: files[0] && files[0] !== '-' ? spareLabWriter(sqlite, sizeOf(files[0])) : null }
+  try {
+    return await importAll(sqlite, files, options, spare)
+  } finally {
+    spare.writer?.close()
+  }
+}
+
+function sizeOf(path: string): number | undefined {
+  try {
+    return statSync(path).size
+  } catch {
+    return undefined // reading it tells why
+  }
+}
+
+async function importAll(sqlite: SQLite.Database, files: readonly string[], options: LabImportOptions, spare: { writer: SpareLabWriter | null }): Promise<LabImportSummary> {
   const batch: BatchContext = {
     ...findLabStorages(sqlite),
     samplingEvents: findSamplingEvents(sqlite),
@@ -103,7 +122,7 @@ export async function importLabFiles(deps: LabImportDeps, files: readonly string
 
   for (let f = 0; f < files.length; f++) {
     const path = files[f]!
-    summaries.push(await importOne(sqlite, path, batch, options))
+    summaries.push(await importOne(sqlite, path, batch, options, spare))
     options.onFile?.(f + 1, files.length, path)
   }
 
@@ -126,7 +145,7 @@ interface BatchContext {
   bookValues: LabCheckContext['bookValues']
 }
 
-async function importOne(sqlite: SQLite.Database, path: string, batch: BatchContext, options: LabImportOptions): Promise<LabFileSummary> {
+async function importOne(sqlite: SQLite.Database, path: string, batch: BatchContext, options: LabImportOptions, spare: { writer: SpareLabWriter | null }): Promise<LabFileSummary> {
   let input: Awaited<ReturnType<typeof readInput>> | undefined
   try {
     input = await readInput(path)
@@ -163,7 +182,9 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   }
 
   // the writer (a worker thread with its own connection) starts while the text is decoded
-  const starting = startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null, bytes: input.bytes.length })
+  const thread = spare.writer
+  spare.writer = null
+  const starting = startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null, bytes: input.bytes.length }, thread)
   starting.catch(() => undefined) // awaited below; an early failure must not go unhandled meanwhile
   const decoded = decodeText(input.bytes)
   input = undefined // the bytes are not needed any more: let a big file's buffer go before the rows are read

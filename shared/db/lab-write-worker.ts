@@ -11,7 +11,7 @@ import type { WorkerReply, WorkerRequest, WriteFailure } from './lab-writer.ts'
  * Each batch done is counted in `control[0]` so that the parser never runs far ahead; the first
  * failure sets `control[1]`, later batches are dropped and the failure is the answer to `finish`.
  */
-const { file, meta, control: controlBuffer } = workerData as { file: string; meta: LabFileMeta; control: SharedArrayBuffer }
+const { file, control: controlBuffer } = workerData as { file: string; control: SharedArrayBuffer }
 const control = new Int32Array(controlBuffer)
 const port = parentPort!
 const reply = (m: WorkerReply) => port.postMessage(m)
@@ -39,6 +39,8 @@ const done = () => {
 }
 
 function onMessage(m: WorkerRequest) {
+  if (m.type === 'begin') return begin(m.meta)
+  if (m.type === 'close') return done()
   if (m.type === 'rows') {
     if (!failure && write) {
       try {
@@ -71,13 +73,17 @@ function onMessage(m: WorkerRequest) {
   }
 }
 
-port.on('message', onMessage)
-try {
-  sqlite = openWriterSqlite(file)
-  write = beginLabFileWrite(sqlite, meta, { mayRebuildIndexes: true })
-  reply({ type: 'ready', runId: write.runId })
-} catch (error) {
-  fail(error)
-  reply({ type: 'failed', failure: failure! })
-  done()
+/** Opens the connection and the file's transaction once the file is known (the thread may start before). */
+function begin(meta: LabFileMeta) {
+  try {
+    sqlite = openWriterSqlite(file)
+    write = beginLabFileWrite(sqlite, meta, { mayRebuildIndexes: true })
+    reply({ type: 'ready', runId: write.runId })
+  } catch (error) {
+    fail(error)
+    reply({ type: 'failed', failure: failure! })
+    done()
+  }
 }
+
+port.on('message', onMessage)

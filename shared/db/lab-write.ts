@@ -33,6 +33,18 @@ export class LabWordList {
   private readonly ids = new Map<string, number>()
   /** words numbered since the last `take` */
   private fresh: string[] = []
+  /** per slot (a column of the rows), the last word asked for and its number: rows repeat their neighbours' words */
+  private readonly lastWord: (string | null)[] = []
+  private readonly lastId: number[] = []
+
+  /** The number of a word in one slot of the rows: the same as `id`, without hashing a word its slot just had. */
+  idIn(slot: number, word: string): number {
+    if (this.lastWord[slot] === word) return this.lastId[slot]!
+    const id = this.id(word)
+    this.lastWord[slot] = word
+    this.lastId[slot] = id
+    return id
+  }
 
   id(word: string): number {
     let id = this.ids.get(word)
@@ -98,14 +110,14 @@ export class LabRowBatch {
     n[o + N_PH] = row.ph ?? NaN
     n[o + N_SUPERSEDES] = supersedes ?? NaN
     n[o + N_FLAGS] = flags
-    n[o + N_REPORT] = w.id(row.reportId)
-    n[o + N_DATE] = w.id(row.sampledOn)
-    n[o + N_FORM] = w.id(v.form)
-    n[o + N_SPECIES] = w.id(v.species)
-    n[o + N_BASIS] = w.id(row.basis)
-    n[o + N_UNITS] = w.id(row.units)
-    n[o + N_PER_UNIT] = w.id(v.perUnit)
-    n[o + N_LAB] = row.lab === null ? NaN : w.id(row.lab)
+    n[o + N_REPORT] = w.idIn(0, row.reportId)
+    n[o + N_DATE] = w.idIn(1, row.sampledOn)
+    n[o + N_FORM] = w.idIn(2, v.form)
+    n[o + N_SPECIES] = w.idIn(3, v.species)
+    n[o + N_BASIS] = w.idIn(4, row.basis)
+    n[o + N_UNITS] = w.idIn(5, row.units)
+    n[o + N_PER_UNIT] = w.idIn(6, v.perUnit)
+    n[o + N_LAB] = row.lab === null ? NaN : w.idIn(7, row.lab)
     this.count++
   }
 }
@@ -242,7 +254,6 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
     }
     return statement
   }
-  const params: unknown[] = new Array(19)
   const words: string[] = []
   const reports = new Map<number, number>() // word of the report number → lab report id
   const storages = new Set<number>()
@@ -292,26 +303,17 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
             lastWords[3] = units
             lastWords[4] = perUnit
           }
-          params[0] = reportId
-          params[1] = storageId
-          params[2] = eventId
-          params[3] = reportNumber
-          params[4] = s[k++]
-          params[5] = words[n[o + N_DATE]!]
-          params[6] = n[o + N_LINE]
-          params[7] = s[k++]
-          params[8] = flags & F_QUALIFIERS ? s[k++] : null
-          params[9] = num(n[o + N_DM]!)
-          params[10] = n[o + N_TOTAL_N]
-          params[11] = num(n[o + N_NH4]!)
-          params[12] = num(n[o + N_ORG_N]!)
-          params[13] = num(n[o + N_P2O5]!)
-          params[14] = num(n[o + N_K2O]!)
-          params[15] = num(n[o + N_SULFUR]!)
-          params[16] = num(n[o + N_PH]!)
-          params[17] = flags & F_NOTES ? s[k++] : null
-          params[18] = flags & F_WARNINGS ? s[k++] : null
-          const { lastInsertRowid } = insert.run(params)
+          // the values as arguments, not one array: better-sqlite3 reads an array's items one property look-up at a time
+          const sample = s[k++]
+          const reported = s[k++]
+          const qualifiers = flags & F_QUALIFIERS ? s[k++] : null
+          const notes = flags & F_NOTES ? s[k++] : null
+          const warnings = flags & F_WARNINGS ? s[k++] : null
+          const { lastInsertRowid } = insert.run(
+            reportId, storageId, eventId, reportNumber, sample, words[n[o + N_DATE]!], n[o + N_LINE], reported, qualifiers,
+            num(n[o + N_DM]!), n[o + N_TOTAL_N], num(n[o + N_NH4]!), num(n[o + N_ORG_N]!), num(n[o + N_P2O5]!), num(n[o + N_K2O]!),
+            num(n[o + N_SULFUR]!), num(n[o + N_PH]!), notes, warnings,
+          )
           const supersedes = num(n[o + N_SUPERSEDES]!)
           if (supersedes !== null) {
             supersede.run(lastInsertRowid, supersedes)

@@ -40,6 +40,8 @@ export type WriteFailure =
   | { kind: 'other'; code: string | null; message: string }
 
 export type WorkerRequest =
+  | { type: 'begin'; meta: LabFileMeta }
+  | { type: 'close' }
   | { type: 'rows'; words: string[]; text: string; numbers: ArrayBuffer; count: number }
   | { type: 'finish'; counts: LabFileCounts | null }
 
@@ -74,9 +76,86 @@ export function labWriterUsesWorker(sqlite: SQLite.Database, bytes: number | und
   return possible && (mode === 'worker' || (bytes ?? 0) >= workerFromBytes)
 }
 
-/** Begins one lab file's transaction (see LabFileWriter). Throws what opening it throws (locked, disk). */
-export async function startLabFileWriter(sqlite: SQLite.Database, meta: LabFileMeta): Promise<LabFileWriter> {
-  return labWriterUsesWorker(sqlite, meta.bytes) ? startWorker(sqlite, meta) : startInThread(sqlite, meta)
+/**
+ * A writer thread started before its file is read: its start-up (loading its modules, some
+ * 0.2–0.3 s) then overlaps reading, hashing and decoding the file. It keeps the process alive only
+ * once a file's write has taken it; `close` ends one that no file took.
+ */
+export interface SpareLabWriter {
+  close(): void
+}
+
+interface WorkerChannel extends SpareLabWriter {
+  worker: Worker
+  control: Int32Array
+  exited: Promise<void>
+  /** the worker's next answer, in order; rejects when it failed or stopped without one */
+  next(): Promise<WorkerReply>
+}
+
+/**
+ * Starts a writer thread for the big file about to be imported into this database (the same rule
+ * as labWriterUsesWorker), or null when that file would be written in this thread.
+ */
+export function spareLabWriter(sqlite: SQLite.Database, bytes: number | undefined): SpareLabWriter | null {
+  if (!labWriterUsesWorker(sqlite, bytes)) return null
+  const channel = openChannel(sqlite.name)
+  channel.worker.unref()
+  return channel
+}
+
+function openChannel(file: string): WorkerChannel {
+  const control = new Int32Array(new SharedArrayBuffer(8)) // [batches done, failed]
+  // the writer only turns batches into inserts: a small heap keeps the import's memory flat
+  const worker = new Worker(workerFile, {
+    workerData: { file, control: control.buffer },
+    resourceLimits: { maxYoungGenerationSizeMb: 8, maxOldGenerationSizeMb: 96 },
+  })
+  const exited = new Promise<void>((resolve) => worker.once('exit', () => resolve()))
+  // the worker's answers in order; an error or exit without an answer rejects the one awaited
+  const answers: WorkerReply[] = []
+  let waiting: { resolve: (m: WorkerReply) => void; reject: (e: unknown) => void } | null = null
+  let broken: unknown = null
+  worker.on('message', (m: WorkerReply) => {
+    if (waiting) {
+      waiting.resolve(m)
+      waiting = null
+    } else answers.push(m)
+  })
+  const breakWith = (error: unknown) => {
+    broken ??= error
+    waiting?.reject(broken)
+    waiting = null
+  }
+  worker.on('error', (error) => breakWith(error))
+  worker.on('exit', () => breakWith(new Error('the lab writer thread stopped before it answered')))
+  return {
+    worker,
+    control,
+    exited,
+    next: () =>
+      new Promise<WorkerReply>((resolve, reject) => {
+        const m = answers.shift()
+        if (m) return resolve(m)
+        if (broken) return reject(broken)
+        waiting = { resolve, reject }
+      }),
+    close: () => worker.postMessage({ type: 'close' } satisfies WorkerRequest),
+  }
+}
+
+/**
+ * Begins one lab file's transaction (see LabFileWriter), in the spare writer thread when one is
+ * given (it is taken: used for this file when the file is written by a thread, closed otherwise). Throws what opening it throws (locked, disk).
+ */
+export async function startLabFileWriter(sqlite: SQLite.Database, meta: LabFileMeta, spare: SpareLabWriter | null = null): Promise<LabFileWriter> {
+  if (!labWriterUsesWorker(sqlite, meta.bytes)) {
+    spare?.close()
+    return startInThread(sqlite, meta)
+  }
+  const channel = (spare as WorkerChannel | null) ?? openChannel(sqlite.name)
+  channel.worker.ref()
+  return startWorker(sqlite, meta, channel)
 }
 
 function startInThread(sqlite: SQLite.Database, meta: LabFileMeta): LabFileWriter {
@@ -116,40 +195,9 @@ function startInThread(sqlite: SQLite.Database, meta: LabFileMeta): LabFileWrite
   }
 }
 
-async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta): Promise<LabFileWriter> {
-  const file = sqlite.name
-  const control = new Int32Array(new SharedArrayBuffer(8)) // [batches done, failed]
-  // the writer only turns batches into inserts: a small heap keeps the import's memory flat
-  const worker = new Worker(workerFile, {
-    workerData: { file, meta, control: control.buffer },
-    resourceLimits: { maxYoungGenerationSizeMb: 8, maxOldGenerationSizeMb: 96 },
-  })
-  const exited = new Promise<void>((resolve) => worker.once('exit', () => resolve()))
-  // the worker's answers in order; an error or exit without an answer rejects the one awaited
-  const answers: WorkerReply[] = []
-  let waiting: { resolve: (m: WorkerReply) => void; reject: (e: unknown) => void } | null = null
-  let broken: unknown = null
-  worker.on('message', (m: WorkerReply) => {
-    if (waiting) {
-      waiting.resolve(m)
-      waiting = null
-    } else answers.push(m)
-  })
-  const breakWith = (error: unknown) => {
-    broken ??= error
-    waiting?.reject(broken)
-    waiting = null
-  }
-  worker.on('error', (error) => breakWith(error))
-  worker.on('exit', () => breakWith(new Error('the lab writer thread stopped before it answered')))
-  const next = () =>
-    new Promise<WorkerReply>((resolve, reject) => {
-      const m = answers.shift()
-      if (m) return resolve(m)
-      if (broken) return reject(broken)
-      waiting = { resolve, reject }
-    })
-
+async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta, channel: WorkerChannel): Promise<LabFileWriter> {
+  const { worker, control, exited, next } = channel
+  worker.postMessage({ type: 'begin', meta } satisfies WorkerRequest)
   const first = await next().catch(async (error) => {
     await exited
     throw error

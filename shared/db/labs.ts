@@ -112,9 +112,20 @@ export function currentLabResultsReader(sqlite: SQLite.Database): (reportNumber:
      from lab_results where report_number = ? and superseded_by is null`,
   )
   const cache = new Map<string, Map<string, StoredLabResult>>()
+  // nothing stored yet (a first import): no report has results, and no query needs to say so
+  const none = new Map<string, StoredLabResult>()
+  if (sqlite.prepare('select 1 from lab_results limit 1').pluck().get() === undefined) return () => none
+  // the rows of one report come one after the other: the last report's results without hashing its number again
+  let lastNumber: string | null = null
+  let last = none
   return (reportNumber) => {
+    if (reportNumber === lastNumber) return last
     let found = cache.get(reportNumber)
-    if (found) return found
+    if (found) {
+      lastNumber = reportNumber
+      last = found
+      return found
+    }
     found = new Map()
     for (const r of query.all(reportNumber) as Record<string, any>[]) {
       found.set(r.sample_code, {
@@ -135,6 +146,8 @@ export function currentLabResultsReader(sqlite: SQLite.Database): (reportNumber:
       })
     }
     cache.set(reportNumber, found)
+    lastNumber = reportNumber
+    last = found
     return found
   }
 }

@@ -10,6 +10,14 @@ import { AppError } from '../errors.ts'
 export const busyTimeoutMs = 5000
 
 /**
+ * The page size of a new database file (SQLite's default is 4 KiB). A lab import writes each page
+ * twice (to the WAL, then at the checkpoint) with one system call per page and frame, and the
+ * stored plans are tens of kilobytes each: with 16 KiB pages a 200,000-row import makes a quarter of
+ * the calls (docs/performance.md). Fixed when the first table is created; an existing file keeps its own.
+ */
+export const newDatabasePageSize = 16384
+
+/**
  * Opens the database for writing: WAL journal, foreign keys on, a busy timeout so a second writer
  * waits instead of failing. Creates the file when it does not exist.
  */
@@ -17,6 +25,8 @@ export function openWriterSqlite(file: string): SQLite.Database {
   try {
     const sqlite = new SQLite(file)
     sqlite.pragma(`busy_timeout = ${busyTimeoutMs}`)
+    // before the WAL journal, which fixes the page size of an empty file
+    if (sqlite.pragma('page_count', { simple: true }) === 0) sqlite.pragma(`page_size = ${newDatabasePageSize}`)
     sqlite.pragma('journal_mode = WAL')
     sqlite.pragma('synchronous = NORMAL')
     sqlite.pragma('foreign_keys = ON')

@@ -1,6 +1,8 @@
+import SQLite from 'better-sqlite3'
 import { sql } from 'kysely'
 import { afterEach, describe, expect, it } from 'vitest'
 import { migrateToLatest, migrationNames } from '../../shared/db/migrations.ts'
+import { newDatabasePageSize, openWriterSqlite } from '../../shared/db/open-sqlite.ts'
 import { makeTempDatabase } from '../helpers/temp-db.ts'
 
 type Opened = Awaited<ReturnType<typeof makeTempDatabase>>
@@ -48,4 +50,23 @@ describe('migrations', () => {
       opened!.sqlite.prepare('insert into farms (organization_id, code, name) values (999, ?, ?)').run('x', 'y'),
     ).toThrow(/FOREIGN KEY/)
   })
+
+  it('give a new database 16 KiB pages, and leave an existing file its own page size', async () => {
+    opened = await makeTempDatabase()
+    expect(opened.sqlite.pragma('page_size', { simple: true })).toBe(newDatabasePageSize)
+    // a file made with SQLite's default 4 KiB pages keeps them, and takes the schema
+    const file = opened.tmp.path('old-pages.db')
+    const old = new SQLite(file)
+    old.pragma('page_size = 4096')
+    old.exec('create table t (x)')
+    old.close()
+    const reopened = openWriterSqlite(file)
+    try {
+      expect(reopened.pragma('page_size', { simple: true })).toBe(4096)
+      expect(reopened.pragma('journal_mode', { simple: true })).toBe('wal')
+    } finally {
+      reopened.close()
+    }
+  })
 })
+

@@ -98,4 +98,25 @@ describe('the lab writer thread', () => {
     expect(dumpDatabase(db)).toBe(before)
     expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
   }, 120_000)
+
+  it('hands the thread started ahead of the first file to the next big file when the first was imported before, and exits', async () => {
+    const db = tmp.path('ahead.db')
+    copyFileSync(template, db)
+    const first = await runCli(['--db', db, '-q', '--json', 'labs', 'import', big])
+    expect(first.exitCode, String(first.stderr)).toBe(0)
+    const second = tmp.path('second.csv')
+    writeLabFile(second, 'CRA-26-TWO', 12_000) // over 1 MB: written by a thread too
+    expect(statSync(second).size).toBeGreaterThan(1024 * 1024)
+    // the first file is unchanged (same sha256): the thread started for it writes the second
+    const r = await runCli(['--db', db, '-q', '--json', 'labs', 'import', big, second])
+    expect(r.exitCode, String(r.stderr)).toBe(0)
+    const files = JSON.parse(String(r.stdout)).files
+    expect(files.map((f: any) => [f.outcome, f.new])).toEqual([['unchanged', 0], ['imported', 12_000]])
+    // only the unchanged file: the thread started for it is closed and the command ends
+    const again = await runCli(['--db', db, '-q', '--json', 'labs', 'import', big])
+    expect(again.exitCode, String(again.stderr)).toBe(0)
+    expect(JSON.parse(String(again.stdout)).files[0].outcome).toBe('unchanged')
+    expect(stored(db).lab_results).toHaveLength(bigRows + 12_000)
+    expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
+  }, 120_000)
 })
