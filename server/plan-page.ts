@@ -30,7 +30,7 @@ interface ServerEntry {
     session: SessionResponse
     planJson: string
     versions: PlanVersionsResponse
-  }): Promise<{ root: string; data: string } | null>
+  }): Promise<{ head: string; root: string; data: string } | null>
 }
 
 export interface RenderedPlanPage {
@@ -59,6 +59,7 @@ export function findServerEntry(webDir: string): string {
 export function planPageRenderer(deps: PlanPageDeps, options: { index: Buffer; entryFile: string }) {
   const template = options.index.toString('utf8')
   const at = template.indexOf(rootElement)
+  const headEnd = template.indexOf('</head>')
   const dataVersion = deps.sqlite.prepare<[], number>('pragma data_version').pluck()
   // plans never change and the page shows nothing else that changes without a commit by another
   // connection (PRAGMA data_version); the session's expiry is in the data, hence the token id
@@ -72,11 +73,11 @@ export function planPageRenderer(deps: PlanPageDeps, options: { index: Buffer; e
   let entry: Promise<ServerEntry | null> | null = null
   const loadEntry = () =>
     (entry ??= (async () => {
-      if (at < 0) {
-        logOnce(`plan pages are rendered in the browser: index.html has no ${rootElement}`)
+      if (!existsSync(options.entryFile)) return null // not built (tests, `npm run dev`): the browser renders
+      if (at < 0 || headEnd < 0 || headEnd > at) {
+        logOnce(`plan pages are rendered in the browser: index.html has no </head> followed by ${rootElement}`)
         return null
       }
-      if (!existsSync(options.entryFile)) return null // not built (tests, `npm run dev`): the browser renders
       try {
         const loaded = (await import(pathToFileURL(options.entryFile).href)) as Partial<ServerEntry>
         if (typeof loaded.renderPlanPage !== 'function') throw new Error('it exports no renderPlanPage')
@@ -101,7 +102,7 @@ export function planPageRenderer(deps: PlanPageDeps, options: { index: Buffer; e
       const versions: PlanVersionsResponse = { versions: await findPlanVersions(deps.db, plan.owner) }
       const page = await server.renderPlanPage({ url: `http://pitside.invalid${req.originalUrl}`, planId, session, planJson: plan.json, versions })
       if (!page) return null
-      const html = `${template.slice(0, at)}<div id="root">${page.root}</div>${page.data}${template.slice(at + rootElement.length)}`
+      const html = `${template.slice(0, headEnd)}${page.head}${template.slice(headEnd, at)}<div id="root">${page.root}</div>${page.data}${template.slice(at + rootElement.length)}`
       const body = Buffer.from(html)
       const rendered = { body, gzip: gzipSync(body) }
       if (cache.size >= maxCached) cache.delete(cache.keys().next().value!)

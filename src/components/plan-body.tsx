@@ -584,6 +584,8 @@ function useAfterFirstPaint(): boolean {
   return painted
 }
 
+export const rateTablesEndId = 'rate-tables-end'
+
 /** Everything a plan shows, for the plan page and the shared-plan page. */
 export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: ReactNode; versions?: ReactNode }) {
   const narrow = useNarrow()
@@ -634,7 +636,8 @@ export function PlanBody({ plan, whatIf, versions }: { plan: PlanView; whatIf?: 
             </div>
           ))}
         </div>
-        <p className="mt-2 text-sm text-muted">Supplied is what the crop can use this season; a bold figure falls short of the need.</p>
+        {/* the end of the rate tables: a server-rendered page is first painted once it is parsed (src/entry-server.tsx) */}
+        <p id={rateTablesEndId} className="mt-2 text-sm text-muted">Supplied is what the crop can use this season; a bold figure falls short of the need.</p>
       </section>
 
       {painted && fields.length > 0 && (
