@@ -123,6 +123,7 @@ describe('the server-rendered plan page in a browser', () => {
         await page.locator(ratesRows).first().waitFor()
         boxes[name] = await page.locator('section[aria-labelledby="rates-title"]').boundingBox()
         await page.screenshot({ path: join(artifacts, `plan-ssr-${name}.png`) })
+        await page.locator('section[aria-labelledby="rates-title"]').screenshot({ path: join(artifacts, `plan-ssr-rates-${name}.png`) })
         expect(errors).toEqual([])
       } finally {
         await context.close()
