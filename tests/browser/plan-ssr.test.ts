@@ -89,7 +89,7 @@ describe('the server-rendered plan page in a browser', () => {
       await page.locator('svg[role="img"]').first().waitFor()
       const seen = await page.evaluate((selector) => {
         const w = window as unknown as { serverRows: number; hadData: boolean }
-        const rows = [...document.querySelectorAll(selector)] as (HTMLElement & { fromServer?: boolean })[]
+        const rows = [...document.querySelectorAll(selector)] as (HTMLTableRowElement & { fromServer?: boolean })[]
         return { serverRows: w.serverRows, hadData: w.hadData, rows: rows.length, same: rows.filter((r) => r.fromServer === true).length, codes: rows.map((r) => r.cells[0]!.firstChild!.textContent) }
       }, ratesRows)
       expect(seen).toEqual({ serverRows: fields.length, hadData: true, rows: fields.length, same: fields.length, codes: expect.arrayContaining(fields.map((f) => f.field)) })
