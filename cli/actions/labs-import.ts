@@ -20,7 +20,7 @@ import { checkLabRow, emptyLabResultValues, type LabCheckContext, type LabResult
 import { bookValuesForStorage } from '../../shared/lab-book-values.ts'
 import type { ActionModule } from '../lazy.ts'
 import { note, printJson, printTable } from '../output.ts'
-import { readInput } from '../read-input.ts'
+import { readInput, readInputBytes } from '../read-input.ts'
 import { withAdvisorSqlite } from './advisor-sqlite.ts'
 
 export interface LabImportDeps {
@@ -146,9 +146,17 @@ interface BatchContext {
 }
 
 async function importOne(sqlite: SQLite.Database, path: string, batch: BatchContext, options: LabImportOptions, spare: { writer: SpareLabWriter | null }): Promise<LabFileSummary> {
-  let input: Awaited<ReturnType<typeof readInput>> | undefined
+  let input: { name: string; bytes: Buffer; sha256: string } | undefined
+  let decoded: ReturnType<typeof decodeText> | undefined
   try {
-    input = await readInput(path)
+    if (spare.writer && path !== '-') {
+      // a spare writer thread hashes the bytes (in shared memory) while this thread decodes them
+      const { name, bytes } = await readInputBytes(path, { shared: true })
+      const hashing = spare.writer.sha256(bytes as Buffer & Uint8Array<SharedArrayBuffer>)
+      hashing.catch(() => undefined) // awaited below, after the decoding
+      decoded = decodeText(bytes)
+      input = { name, bytes, sha256: await hashing }
+    } else input = await readInput(path)
   } catch (error) {
     if (!isAppError(error)) throw error
     const s = emptySummary(path, null)
@@ -186,7 +194,7 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   spare.writer = null
   const starting = startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null, bytes: input.bytes.length }, thread)
   starting.catch(() => undefined) // awaited below; an early failure must not go unhandled meanwhile
-  const decoded = decodeText(input.bytes)
+  decoded ??= decodeText(input.bytes)
   input = undefined // the bytes are not needed any more: let a big file's buffer go before the rows are read
   if (decoded.problem) {
     await starting.then((w) => w.finish(null)).catch(() => undefined)

@@ -1,4 +1,5 @@
 import type SQLite from 'better-sqlite3'
+import { createHash } from 'node:crypto'
 import { parentPort, workerData } from 'node:worker_threads'
 import { isAppError } from '../errors.ts'
 import { openWriterSqlite } from './open-sqlite.ts'
@@ -41,6 +42,7 @@ const done = () => {
 function onMessage(m: WorkerRequest) {
   if (m.type === 'begin') return begin(m.meta)
   if (m.type === 'close') return done()
+  if (m.type === 'hash') return reply({ type: 'hashed', sha256: createHash('sha256').update(new Uint8Array(m.buffer, m.offset, m.length)).digest('hex') })
   if (m.type === 'rows') {
     if (!failure && write) {
       try {

@@ -27,6 +27,8 @@ const F_QUALIFIERS = 1, F_NOTES = 2, F_WARNINGS = 4
 
 /** Rows per batch: big enough that a batch costs little to hand over, small enough to keep memory flat. */
 export const batchRows = 4096
+/** Rows of a file's first batch for a writer thread: small, so that the writer starts soon after the reading. */
+export const firstBatchRows = 256
 
 /** The words (repeated strings) of one file, numbered in the order they first appear. */
 export class LabWordList {
@@ -67,13 +69,18 @@ export class LabWordList {
 export class LabRowBatch {
   /** per row: sample code, reported cells, then the optional strings its flags name */
   strings: string[] = []
-  numbers = new Float64Array(batchRows * rowNumbers)
+  readonly numbers: Float64Array
   count = 0
 
-  constructor(private readonly words: LabWordList) {}
+  constructor(
+    private readonly words: LabWordList,
+    private readonly capacity = batchRows,
+  ) {
+    this.numbers = new Float64Array(capacity * rowNumbers)
+  }
 
   get full(): boolean {
-    return this.count === batchRows
+    return this.count === this.capacity
   }
 
   /** Adds one checked row: its values as stored and the stored result it supersedes, if any. */

@@ -5,7 +5,7 @@ import { Worker } from 'node:worker_threads'
 import { AppError, type ErrorCode } from '../errors.ts'
 import type { LabRow } from '../lab-csv.ts'
 import type { LabResultValues } from '../lab-results.ts'
-import { beginLabFileWrite, LabRowBatch, LabRowWriteError, LabWordList, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
+import { beginLabFileWrite, firstBatchRows, LabRowBatch, LabRowWriteError, LabWordList, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
 
 /**
  * Writes one lab file while it is being read. For a big file (see labWriterUsesWorker), the
@@ -42,11 +42,13 @@ export type WriteFailure =
 export type WorkerRequest =
   | { type: 'begin'; meta: LabFileMeta }
   | { type: 'close' }
+  | { type: 'hash'; buffer: SharedArrayBuffer; offset: number; length: number }
   | { type: 'rows'; words: string[]; text: string; numbers: ArrayBuffer; count: number }
   | { type: 'finish'; counts: LabFileCounts | null }
 
 export type WorkerReply =
   | { type: 'ready'; runId: number }
+  | { type: 'hashed'; sha256: string }
   | { type: 'committed'; runId: number; count: number; replaced: number }
   | { type: 'rolled-back' }
   | { type: 'failed'; failure: WriteFailure }
@@ -82,6 +84,11 @@ export function labWriterUsesWorker(sqlite: SQLite.Database, bytes: number | und
  * once a file's write has taken it; `close` ends one that no file took.
  */
 export interface SpareLabWriter {
+  /**
+   * The SHA-256 (hex) of a file's bytes, computed in the spare thread while this one goes on (with
+   * the bytes in shared memory, nothing is copied). Call before the file's write starts.
+   */
+  sha256(bytes: Uint8Array<SharedArrayBuffer>): Promise<string>
   close(): void
 }
 
@@ -129,18 +136,26 @@ function openChannel(file: string): WorkerChannel {
   }
   worker.on('error', (error) => breakWith(error))
   worker.on('exit', () => breakWith(new Error('the lab writer thread stopped before it answered')))
+  const next = () =>
+    new Promise<WorkerReply>((resolve, reject) => {
+      const m = answers.shift()
+      if (m) return resolve(m)
+      if (broken) return reject(broken)
+      waiting = { resolve, reject }
+    })
   return {
     worker,
     control,
     exited,
-    next: () =>
-      new Promise<WorkerReply>((resolve, reject) => {
-        const m = answers.shift()
-        if (m) return resolve(m)
-        if (broken) return reject(broken)
-        waiting = { resolve, reject }
-      }),
+    next,
     close: () => worker.postMessage({ type: 'close' } satisfies WorkerRequest),
+    sha256: async (bytes) => {
+      worker.postMessage({ type: 'hash', buffer: bytes.buffer, offset: bytes.byteOffset, length: bytes.length } satisfies WorkerRequest)
+      worker.ref() // a spare thread keeps the process alive only while this waits for its answer
+      const answer = await next().finally(() => worker.unref())
+      if (answer.type === 'hashed') return answer.sha256
+      throw answer.type === 'failed' ? errorOf(answer.failure) : new Error(`the lab writer thread answered ${answer.type} to a hash`)
+    },
   }
 }
 
@@ -214,7 +229,7 @@ async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta, channel: 
     if (sqlite.inTransaction) sqlite.exec('commit')
   }
   const words = new LabWordList()
-  let batch = new LabRowBatch(words)
+  let batch = new LabRowBatch(words, firstBatchRows)
   let sent = 0
   let queued = 0
   const failed = () => Atomics.load(control, 1) === 1
