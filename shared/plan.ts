@@ -307,7 +307,7 @@ interface StorageAnalysis {
 function storageAnalysis(s: PlanStorageSnapshot, date: string, set: ReferenceSet): { value: StorageAnalysis | null; warnings: Warning[] } {
   const warnings: Warning[] = []
   const roundResults = findSamplingRound(s.results, date)
-  const book = speciesSet.has(s.species) ? findBookValues(s.species as Species, s.form, set) : null
+  const book = speciesSet.has(s.species) ? findBookValues(s.species as Species, s.form, set, s.kind) : null
   const share = s.kind === 'lagoon' ? ammoniumShareOfTotalN.lagoon : s.form === 'liquid' ? ammoniumShareOfTotalN.liquid : ammoniumShareOfTotalN.solid
   const unit = s.form === 'liquid' ? 'lb/1000 gal' : 'lb/ton'
   const means: Record<string, number | null> = {}

@@ -218,6 +218,34 @@ describe('pitside plan', () => {
     expect(s.surplus).toBeCloseTo(500000 - plans[0].fields[0].total_manure, -1)
   })
 
+  it('takes book values written for the storage kind: a lagoon gets no slurry-pit values, a basin does', async () => {
+    const db = tmp.path('book-kind.db')
+    await seedDatabaseFile(db, [
+      {
+        code: 'LAG',
+        storages: [
+          { code: 'L1', kind: 'lagoon', species: 'dairy', form: 'liquid', currentAmount: 900000, capacityUnit: 'gal' },
+          { code: 'B1', kind: 'earthen_basin', species: 'dairy', form: 'liquid', currentAmount: 400000, capacityUnit: 'gal' },
+        ],
+        fields: [
+          { code: 'F1', acres: 30, storage: 'L1', method: 'injected', seasons: [{ season: 2027, crop: 'corn_grain', yieldGoal: 180, previousCrop: 'corn' }] },
+          { code: 'F2', acres: 30, storage: 'B1', method: 'injected', seasons: [{ season: 2027, crop: 'corn_grain', yieldGoal: 180, previousCrop: 'corn' }] },
+        ],
+      },
+    ])
+    const { plans } = await planJson(db, ['--farm', 'LAG'])
+    const byCode = new Map(plans[0].storages.map((s: any) => [s.storage, s]))
+    // SARE, Building Soils for Better Crops (2010): dairy slurry 25 lb N, 9 P2O5, 20 K2O per 1000 gal, written for pits, tanks and basins
+    expect(byCode.get('B1')).toMatchObject({ analysis_source: 'book', analysis: { total_n: 25, p2o5: 9, k2o: 20 } })
+    // a lagoon's liquid is far more dilute: the set has no book values for it, so the plan asks for a sample instead of guessing
+    const lagoon = byCode.get('L1') as any
+    expect(lagoon.analysis).toBeNull()
+    expect(lagoon.warnings.map((w: any) => w.code)).toContain('no_analysis')
+    // its field is not planned, and the plan says why
+    expect(plans[0].fields.map((f: any) => f.field)).toEqual(['F2'])
+    expect(plans[0].skipped).toEqual([{ field: 'F1', reason: expect.stringMatching(/storage L1 has no analysis/) }])
+  })
+
   it('writes CSV, refuses an unknown farm naming the known ones, and needs --season', async () => {
     const db = copyOfDemo()
     const csv = await runCli(['--db', db, 'plan', '--farm', 'QBF', '--season', '2027', '--as-of', '2026-11-15', '--csv'])
