@@ -24,7 +24,7 @@ const storages = db
 const results = db
   .prepare(
     `with latest as (select storage_id, max(sampled_on) as d from lab_results where superseded_by is null and sampled_on <= ? group by storage_id)
-     select r.storage_id, r.sample_code, r.report_number, r.sampled_on, r.dry_matter_pct, r.total_n, r.ammonium_n, r.p2o5, r.k2o
+     select r.storage_id, r.sample_code, (select report_number from lab_reports p where p.id = r.lab_report_id), r.sampled_on, r.dry_matter_pct, r.total_n, r.ammonium_n, r.p2o5, r.k2o
      from lab_results r join latest l on l.storage_id = r.storage_id
      where r.superseded_by is null and r.sampled_on <= l.d and r.sampled_on >= date(l.d, '-45 days') order by r.storage_id, r.sampled_on`,
   )

@@ -222,8 +222,6 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
     close()
     throw error
   }
-  // every result of the file is stored at the moment of its import run (one clock reading, not one per row)
-  const storedAt = sqlite.prepare('select created_at from import_runs where id = ?').pluck().get(runId) as string
   // the indexes to build again before the commit (inside the transaction: a failure or a crash
   // rolls their removal back with the rows)
   let indexes: string[] = []
@@ -242,8 +240,8 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
   }
 
   // One insert statement per combination of the values that repeat (form, species, basis, units):
-  // they, the import run and its time are written into its SQL as literals, so each row binds 19
-  // values, not 25.
+  // they and the import run are written into its SQL as literals, so each row binds 18 values, not
+  // 24. A result's report number and time are its lab report's and its import run's.
   const literal = (text: string) => `'${text.replace(/'/g, "''")}'`
   const inserts = new Map<string, SQLite.Statement>()
   const insertFor = (form: string, species: string, basis: string, units: string, perUnit: string) => {
@@ -251,11 +249,11 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
     let statement = inserts.get(key)
     if (!statement) {
       statement = sqlite.prepare(
-        `insert into lab_results (lab_report_id, storage_id, sampling_event_id, report_number, sample_code, sampled_on, line,
+        `insert into lab_results (lab_report_id, storage_id, sampling_event_id, sample_code, sampled_on, line,
            reported, qualifiers, dry_matter_pct, total_n, ammonium_n, organic_n, p2o5, k2o, sulfur, ph, notes, warnings,
-           form, species, basis, units, per_unit, import_run_id, created_at)
-         values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?,
-           ${literal(form)}, ${literal(species)}, ${literal(basis)}, ${literal(units)}, ${literal(perUnit)}, ${runId}, ${literal(storedAt)})`,
+           form, species, basis, units, per_unit, import_run_id)
+         values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?,
+           ${literal(form)}, ${literal(species)}, ${literal(basis)}, ${literal(units)}, ${literal(perUnit)}, ${runId})`,
       )
       inserts.set(key, statement)
     }
@@ -287,11 +285,10 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
         const flags = n[o + N_FLAGS]!
         try {
           const reportWord = n[o + N_REPORT]!
-          const reportNumber = words[reportWord]!
           let reportId = reports.get(reportWord)
           if (reportId === undefined) {
             const lab = n[o + N_LAB]!
-            reportId = Number(insertReport.run(lab !== lab ? null : words[lab], reportNumber, meta.fileName, meta.sha256, runId).lastInsertRowid)
+            reportId = Number(insertReport.run(lab !== lab ? null : words[lab], words[reportWord]!, meta.fileName, meta.sha256, runId).lastInsertRowid)
             reports.set(reportWord, reportId)
           }
           const storageId = n[o + N_STORAGE]!
@@ -317,7 +314,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
           const notes = flags & F_NOTES ? s[k++] : null
           const warnings = flags & F_WARNINGS ? s[k++] : null
           const { lastInsertRowid } = insert.run(
-            reportId, storageId, eventId, reportNumber, sample, words[n[o + N_DATE]!], n[o + N_LINE], reported, qualifiers,
+            reportId, storageId, eventId, sample, words[n[o + N_DATE]!], n[o + N_LINE], reported, qualifiers,
             num(n[o + N_DM]!), n[o + N_TOTAL_N], num(n[o + N_NH4]!), num(n[o + N_ORG_N]!), num(n[o + N_P2O5]!), num(n[o + N_K2O]!),
             num(n[o + N_SULFUR]!), num(n[o + N_PH]!), notes, warnings,
           )

@@ -108,8 +108,9 @@ export function labResultSignature(r: {
  */
 export function currentLabResultsReader(sqlite: SQLite.Database): (reportNumber: string) => Map<string, StoredLabResult> {
   const query = sqlite.prepare(
-    `select id, sample_code, storage_id, sampled_on, basis, units, dry_matter_pct, total_n, ammonium_n, p2o5, k2o, sulfur, ph
-     from lab_results where report_number = ? and superseded_by is null`,
+    `select r.id, r.sample_code, r.storage_id, r.sampled_on, r.basis, r.units, r.dry_matter_pct, r.total_n, r.ammonium_n, r.p2o5, r.k2o, r.sulfur, r.ph
+     from lab_reports p join lab_results r on r.lab_report_id = p.id
+     where p.report_number = ? and r.superseded_by is null`,
   )
   const cache = new Map<string, Map<string, StoredLabResult>>()
   // nothing stored yet (a first import): no report has results, and no query needs to say so

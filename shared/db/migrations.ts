@@ -1,11 +1,13 @@
 import { Migrator, type Migration, type MigrationProvider, type Kysely } from 'kysely'
 import * as createSchema from '../../migrations/2026_12_01_0900_create_schema.ts'
+import * as labResultsWithoutCopies from '../../migrations/2026_12_02_0300_lab_results_without_copies.ts'
 import { migrationNames } from './migration-names.ts'
 
 // A static provider: Kysely's FileMigrationProvider reads the folder at run time, which fails under
 // vitest and in the compiled build. Add each new migration here, in order.
 const migrations: Record<string, Migration> = {
   '2026_12_01_0900_create_schema': createSchema,
+  '2026_12_02_0300_lab_results_without_copies': labResultsWithoutCopies,
 }
 
 if (Object.keys(migrations).join('\n') !== migrationNames.join('\n')) {

@@ -126,7 +126,7 @@ export function findPlanSnapshots(sqlite: SQLite.Database, selection: PlanSelect
 
   // lab results: the latest round as of asOf, plus everything since the residual window opened
   const since = daysBefore(`${season - 3}-07-01`, 365)
-  const columns = 'r.id, r.storage_id, r.sample_code, r.report_number, r.sampled_on, r.dry_matter_pct, r.total_n, r.ammonium_n, r.p2o5, r.k2o'
+  const columns = 'r.id, r.storage_id, r.sample_code, (select report_number from lab_reports p where p.id = r.lab_report_id) as report_number, r.sampled_on, r.dry_matter_pct, r.total_n, r.ammonium_n, r.p2o5, r.k2o'
   const join = all ? '' : ` join storages s on s.id = r.storage_id and ${farmFilter('s.farm_id')}`
   const latest = sqlite
     .prepare(

@@ -106,7 +106,6 @@ export interface Database {
     lab_report_id: number
     storage_id: number
     sampling_event_id: number | null
-    report_number: string
     sample_code: string
     sampled_on: string
     line: number | null
@@ -129,7 +128,6 @@ export interface Database {
     warnings: string | null
     superseded_by: number | null
     import_run_id: number | null
-    created_at: Generated<string>
   }
   fields: {
     id: Generated<number>

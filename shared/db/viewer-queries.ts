@@ -138,11 +138,11 @@ export async function findFarmDetail(db: Kysely<Database>, viewer: Viewer, code:
     db
       .selectFrom('lab_results')
       .innerJoin('storages', 'storages.id', 'lab_results.storage_id')
-      .leftJoin('lab_reports', 'lab_reports.id', 'lab_results.lab_report_id')
+      .innerJoin('lab_reports', 'lab_reports.id', 'lab_results.lab_report_id')
       .select([
         'lab_results.storage_id',
         'lab_results.sample_code',
-        'lab_results.report_number',
+        'lab_reports.report_number',
         'lab_reports.lab',
         'lab_results.sampled_on',
         'lab_results.dry_matter_pct',

@@ -150,7 +150,7 @@ describe('pitside labs import', () => {
     const db = freshDb()
     const ok = await runCli(['--db', db, '--json', 'labs', 'import', '--profile', fixture('other-lab-profile.json'), fixture('other-lab-layout.csv')])
     expect(ok.exitCode).toBe(0)
-    expect(query(db, 'select r.report_number, p.lab, r.total_n, r.ammonium_n, r.p2o5, r.line from lab_results r join lab_reports p on p.id = r.lab_report_id')).toEqual([
+    expect(query(db, 'select p.report_number, p.lab, r.total_n, r.ammonium_n, r.p2o5, r.line from lab_results r join lab_reports p on p.id = r.lab_report_id')).toEqual([
       { report_number: 'TVL-0917', lab: 'Tamarack Valley Lab', total_n: 49.8, ammonium_n: 34.1, p2o5: 26, line: 4 },
     ])
     const badProfile = tmp.path('bad-profile.json')

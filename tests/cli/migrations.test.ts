@@ -1,9 +1,11 @@
 import SQLite from 'better-sqlite3'
-import { sql } from 'kysely'
+import { Migrator, sql } from 'kysely'
 import { afterEach, describe, expect, it } from 'vitest'
 import { migrateToLatest, migrationNames } from '../../shared/db/migrations.ts'
 import { newDatabasePageSize, openWriterSqlite } from '../../shared/db/open-sqlite.ts'
-import { makeTempDatabase } from '../helpers/temp-db.ts'
+import * as createSchema from '../../migrations/2026_12_01_0900_create_schema.ts'
+import { openWriter } from '../../shared/db/open-database.ts'
+import { makeTempDatabase, makeTempDir } from '../helpers/temp-db.ts'
 
 type Opened = Awaited<ReturnType<typeof makeTempDatabase>>
 let opened: Opened | undefined
@@ -66,6 +68,40 @@ describe('migrations', () => {
       expect(reopened.pragma('journal_mode', { simple: true })).toBe('wal')
     } finally {
       reopened.close()
+    }
+  })
+
+  it('move a database with lab results from the first schema to the latest: each result keeps its report number and import time through its report and run', async () => {
+    const tmp = makeTempDir()
+    const first = openWriter(tmp.path('first.db'))
+    try {
+      const migrator = new Migrator({ db: first.db, provider: { getMigrations: async () => ({ '2026_12_01_0900_create_schema': createSchema }) } })
+      const { error } = await migrator.migrateToLatest()
+      expect(error).toBeUndefined()
+      const s = first.sqlite
+      s.exec(`insert into organizations (code, name) values ('o', 'Tamarack Valley Advisors');
+        insert into farms (organization_id, code, name) values (1, 'QBF', 'Quarry Bend Farm');
+        insert into storages (farm_id, code, kind, species, form) values (1, 'P1', 'deep_pit', 'swine', 'liquid');
+        insert into import_runs (kind, file_name, sha256, outcome, created_at) values ('labs', 'labs.csv', 'abc', 'imported', '2026-11-02 08:00:00');
+        insert into lab_reports (lab, report_number, import_run_id) values ('Cobble Run Analytical', 'CRA-26-0001', 1);
+        insert into lab_results (lab_report_id, storage_id, report_number, sample_code, sampled_on, form, species, basis, units, reported, per_unit, total_n, import_run_id, created_at)
+          values (1, 1, 'CRA-26-0001', 'S-1', '2026-10-20', 'liquid', 'swine', 'as_is', 'lb_per_1000gal', '{}', '1000gal', 41.5, 1, '2026-11-02 08:00:00');`)
+      const outcome = await migrateToLatest(first.db)
+      expect(outcome.applied).toEqual(migrationNames.slice(1))
+      const columns = s.prepare('select name from pragma_table_info(?)').pluck().all('lab_results')
+      expect(columns).not.toContain('report_number')
+      expect(columns).not.toContain('created_at')
+      expect(
+        s.prepare(`select p.report_number, i.created_at, r.sample_code, r.total_n from lab_results r
+          join lab_reports p on p.id = r.lab_report_id join import_runs i on i.id = r.import_run_id`).all(),
+      ).toEqual([{ report_number: 'CRA-26-0001', created_at: '2026-11-02 08:00:00', sample_code: 'S-1', total_n: 41.5 }])
+      // a result is found by its report and sample through the index on (lab_report_id, sample_code)
+      const plan = s.prepare(`explain query plan select id from lab_results where lab_report_id = 1 and sample_code = 'S-1'`).all() as { detail: string }[]
+      expect(plan.map((p) => p.detail).join(' ')).toMatch(/lab_results_report_sample_idx/)
+      expect(s.pragma('integrity_check', { simple: true })).toBe('ok')
+    } finally {
+      await first.close()
+      tmp.cleanup()
     }
   })
 })

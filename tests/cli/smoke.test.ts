@@ -1,3 +1,4 @@
+import { migrationNames } from '../../shared/db/migration-names.ts'
 import { afterEach, describe, expect, it } from 'vitest'
 import { runCli } from '../helpers/cli.ts'
 import { makeTempDir, type TempDir } from '../helpers/temp-db.ts'
@@ -24,7 +25,7 @@ describe('pitside binary', () => {
     const db = tmp.path('x.db')
     const first = await runCli(['--db', db, 'init'])
     expect(first.exitCode).toBe(0)
-    expect(first.stderr).toMatch(/applied 1 migration/)
+    expect(first.stderr).toContain(`applied ${migrationNames.length} migration(s): ${migrationNames.join(', ')}`)
     const second = await runCli(['--db', db, '--json', 'init'])
     expect(second.exitCode).toBe(0)
     expect(JSON.parse(String(second.stdout))).toMatchObject({ applied: [] })

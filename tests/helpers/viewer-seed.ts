@@ -176,12 +176,6 @@ export async function seedViewerDatabase(db: Kysely<Database>): Promise<SeedResu
     const { id } = await db.insertInto('organizations').values({ code, name }).returning('id').executeTakeFirstOrThrow()
     out.organizations[code] = id
   }
-  const { id: reportId } = await db
-    .insertInto('lab_reports')
-    .values({ lab: 'Cobble Run Analytical', report_number: 'CRA-24-0117' })
-    .returning('id')
-    .executeTakeFirstOrThrow()
-
   let sampleNo = 0
   for (const farm of seedFarms) {
     const { id: farmId } = await db
@@ -217,12 +211,17 @@ export async function seedViewerDatabase(db: Kysely<Database>): Promise<SeedResu
             sampleNo++
             const wobble = 1 + ((sampleNo * 37) % 11 - 5) / 50
             const [dm, tn, nh4, p, kk] = s.base.map((v) => round(v * drift * wobble, 1)) as [number, number, number, number, number]
+            // one lab report per result, numbered as the lab numbers them
+            const report = await db
+              .insertInto('lab_reports')
+              .values({ lab: 'Cobble Run Analytical', report_number: `CRA-${String(season).slice(2)}-${String(100 + sampleNo).padStart(4, '0')}` })
+              .returning('id')
+              .executeTakeFirstOrThrow()
             await db
               .insertInto('lab_results')
               .values({
-                lab_report_id: reportId,
+                lab_report_id: report.id,
                 storage_id: id,
-                report_number: `CRA-${String(season).slice(2)}-${String(100 + sampleNo).padStart(4, '0')}`,
                 sample_code: `${farm.code}-${s.code}-${season}${month}-${k + 1}`,
                 sampled_on: `${season}-${month}-${String(10 + k * 3).padStart(2, '0')}`,
                 form: s.form,

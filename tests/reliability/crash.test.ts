@@ -108,7 +108,7 @@ function importState(db: string, file: string, reportId: string): Outcome['state
         `select (select count(*) from import_runs where file_name = @file) as runs,
                 (select coalesce(sum(rows_new), 0) from import_runs where file_name = @file) as rows_new,
                 (select count(*) from lab_reports where report_number = @report) as reports,
-                (select count(*) from lab_results where report_number = @report) as results`,
+                (select count(*) from lab_results r join lab_reports p on p.id = r.lab_report_id where p.report_number = @report) as results`,
       )
       .get({ file, report: reportId }) as { runs: number; rows_new: number; reports: number; results: number }
     if (r.runs === 0 && r.reports === 0 && r.results === 0) return 'absent'

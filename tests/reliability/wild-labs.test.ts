@@ -93,9 +93,10 @@ describe('real-world-shaped lab files', () => {
 
     const s = new SQLite(db, { readonly: true })
     const stored = s.prepare(
-      `select r.*, st.code as storage_code, f.code as farm_code from lab_results r
+      `select r.*, p.report_number, st.code as storage_code, f.code as farm_code from lab_results r
+         join lab_reports p on p.id = r.lab_report_id
          join storages st on st.id = r.storage_id join farms f on f.id = st.farm_id
-        where r.report_number = ? and r.sample_code = ?`,
+        where p.report_number = ? and r.sample_code = ?`,
     )
     const mismatches: string[] = []
     // M(P2O5)/2M(P) and M(K2O)/2M(K) from chemical-elements' atomic masses (IUPAC)
