@@ -5,7 +5,7 @@ import { QueryClient, QueryClientProvider } from '@tanstack/react-query'
 import { StrictMode } from 'react'
 import { renderToString } from 'react-dom/server'
 import { createStaticHandler, createStaticRouter, StaticRouterProvider } from 'react-router'
-import type { PlanVersionsResponse, SessionResponse } from '../shared/api-types.ts'
+import type { PlanVersionsResponse, PlanView, SessionResponse } from '../shared/api-types.ts'
 import { appRoutes } from './app-routes.tsx'
 import { rateTablesEndId } from './components/plan-body.tsx'
 import { pageDataScript, seedQueries, type PageData } from './page-data.ts'
@@ -37,13 +37,8 @@ export interface RenderedPage {
 export async function renderPlanPage(input: PlanPageInput): Promise<RenderedPage | null> {
   // a cache per request: nothing of one user's page may reach another's
   const queryClient = new QueryClient({ defaultOptions: { queries: { refetchOnWindowFocus: false, retry: false } } })
-  const data: Omit<PageData, 'router'> = {
-    session: input.session,
-    planId: input.planId,
-    plan: JSON.parse(input.planJson) as PageData['plan'],
-    versions: input.versions,
-  }
-  seedQueries(queryClient, { ...data, router: {} })
+  const data: Omit<PageData, 'router'> = { session: input.session, planId: input.planId, versions: input.versions }
+  seedQueries(queryClient, { ...data, router: {} }, JSON.parse(input.planJson) as PlanView)
   const handler = createStaticHandler(appRoutes(queryClient))
   const context = await handler.query(new Request(input.url))
   if (context instanceof Response) return null
@@ -67,7 +62,6 @@ export async function renderPlanPage(input: PlanPageInput): Promise<RenderedPage
     data: pageDataScript({
       session: JSON.stringify(input.session),
       planId: input.planId,
-      plan: input.planJson,
       versions: JSON.stringify(input.versions),
       router: JSON.stringify(hydration),
     }),

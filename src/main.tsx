@@ -3,6 +3,7 @@ import { StrictMode } from 'react'
 import { createRoot, hydrateRoot } from 'react-dom/client'
 import { createBrowserRouter, matchRoutes, RouterProvider, type RouteObject } from 'react-router'
 import { appRoutes } from './app-routes.tsx'
+import { planQueryOptions } from './api/queries.ts'
 import { readPageData, seedQueries } from './page-data.ts'
 import './styles.css'
 
@@ -30,9 +31,10 @@ async function resolveLazyRoutes(all: RouteObject[]): Promise<void> {
 }
 
 /**
- * A page the server rendered (a plan page: its markup in #root, its answers in the data element)
- * is hydrated from the same answers, with the page's code loaded first and without running the
- * loaders; every other page is rendered here.
+ * A page the server rendered (a plan page: its markup in #root, its small answers in the data
+ * element, the plan fetched: see PageData) is hydrated from the same answers, with the page's code
+ * and the plan loaded first and without running the loaders; every other page is rendered here. A
+ * plan that cannot be fetched now leaves the page to render itself, which shows why.
  */
 async function start() {
   const data = readPageData(document)
@@ -41,7 +43,11 @@ async function start() {
     return
   }
   seedQueries(queryClient, data)
-  await resolveLazyRoutes(routes)
+  const [, plan] = await Promise.allSettled([resolveLazyRoutes(routes), queryClient.fetchQuery(planQueryOptions(data.planId))])
+  if (plan.status === 'rejected') {
+    createRoot(container).render(app(createBrowserRouter(routes)))
+    return
+  }
   hydrateRoot(container, app(createBrowserRouter(routes, { hydrationData: data.router })))
 }
 

@@ -5,14 +5,15 @@ import { planQueryOptions, planVersionsQueryOptions, sessionQueryOptions } from 
 
 /**
  * What a server-rendered page was rendered from, sent beside its markup so that the browser starts
- * from the same answers (and hydrates the same page) without asking for them again. Each answer is
- * exactly what its API path returns.
+ * from the same answers (and hydrates the same page). Each answer is exactly what its API path
+ * returns. The plan itself is not in it: it is three quarters of a long plan's page and the first
+ * paint does not need it (the markup has it), so the browser fetches it (`/api/plans/:id`, asked for
+ * by the page's Link header while the HTML arrives) and hydrates once it is there.
  */
 export interface PageData {
   session: SessionResponse
   /** The plan id as it appears in the page's path. */
   planId: string
-  plan: PlanView
   versions: PlanVersionsResponse
   /** The router's loader data of the server's render (createBrowserRouter's hydrationData). */
   router: HydrationState
@@ -34,8 +35,8 @@ export function escapeJsonForScript(json: string): string {
  * The data element of a page, from the JSON texts of its parts (the plan's text is passed as it is
  * stored for the API, so that it is not serialized again). Not executable: the CSP allows no inline script.
  */
-export function pageDataScript(parts: { session: string; planId: string; plan: string; versions: string; router: string }): string {
-  const json = `{"session":${parts.session},"planId":${JSON.stringify(parts.planId)},"plan":${parts.plan},"versions":${parts.versions},"router":${parts.router}}`
+export function pageDataScript(parts: { session: string; planId: string; versions: string; router: string }): string {
+  const json = `{"session":${parts.session},"planId":${JSON.stringify(parts.planId)},"versions":${parts.versions},"router":${parts.router}}`
   return `<script type="application/json" id="${pageDataId}">${escapeJsonForScript(json)}</script>`
 }
 
@@ -50,9 +51,13 @@ export function readPageData(doc: Document): PageData | null {
   }
 }
 
-/** Puts a page's answers into a query cache under the keys the pages ask for them with (src/api/queries.ts). */
-export function seedQueries(queryClient: QueryClient, data: PageData): void {
+/**
+ * Puts a page's answers into a query cache under the keys the pages ask for them with
+ * (src/api/queries.ts): those of the data element, and the plan when it is given (the server has it;
+ * the browser fetches it, see PageData).
+ */
+export function seedQueries(queryClient: QueryClient, data: PageData, plan?: PlanView): void {
   queryClient.setQueryData(sessionQueryOptions().queryKey, data.session)
-  queryClient.setQueryData(planQueryOptions(data.planId).queryKey, data.plan)
   queryClient.setQueryData(planVersionsQueryOptions(data.planId).queryKey, data.versions)
+  if (plan) queryClient.setQueryData(planQueryOptions(data.planId).queryKey, plan)
 }

@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { PlanView } from '../../shared/api-types.ts'
 import { makeViewerFixture, type ViewerFixture } from '../helpers/viewer-app.ts'
 import { seedPassword } from '../helpers/viewer-seed.ts'
+import { pageDataScript } from '../../src/page-data.ts'
 
 // The plan page comes rendered on the server for a signed-in reader (server/plan-page.ts with the
 // built server entry dist/ssr/entry-server.js, beside the built client dist/web); every other
@@ -78,15 +79,20 @@ describe('the server-rendered plan page', () => {
     expect(root).toContain(plan.farm.name)
     expect(root).toContain('Maren Castellano') // the signed-in user in the page's header
     expect(root).toMatch(/hydrogen sulfide/i)
-    const data = JSON.parse(dataElement.exec(html)![1]!) as { session: { user: { email: string } }; planId: string; plan: PlanView; versions: { versions: unknown[] } }
-    expect(data.plan).toEqual(plan)
+    const data = JSON.parse(dataElement.exec(html)![1]!) as { session: { user: { email: string } }; planId: string; plan?: PlanView; versions: { versions: unknown[] } }
+    // the plan is in the markup, not again in the data: the browser fetches it to hydrate (preloaded below)
+    expect(data.plan).toBeUndefined()
     expect(data.planId).toBe(String(id))
     expect(data.session.user.email).toBe('maren@loamridge.example')
     expect(data.versions).toEqual((await request(fx.app).get(`/api/plans/${id}/versions`).set('Cookie', cookie)).body)
     for (const tag of scriptTags(html)) expect(tag, tag).toMatch(/\bsrc="\/assets\/|type="application\/json"/)
-    // the page's code is still named for the browser, its answers are not: they are in the page
-    expect(r.headers.link).toMatch(/rel=modulepreload/)
-    expect(r.headers.link).not.toMatch(/\/api\//)
+    // the page's code, the plan it hydrates from and the figures' typeface are named for the browser;
+    // the small answers are in the page
+    const links = String(r.headers.link).split(', ')
+    expect(links).toContain(`</api/plans/${id}>; rel=preload; as=fetch; crossorigin=anonymous`)
+    expect(links.filter((l) => /\/api\//.test(l))).toHaveLength(1)
+    expect(links.filter((l) => /rel=modulepreload/.test(l)).length).toBeGreaterThan(0)
+    expect(links.filter((l) => /^<\/assets\/jetbrains-mono-latin-(400|600)-normal-[\w-]+\.woff2>; rel=preload; as=font; type="font\/woff2"; crossorigin=anonymous$/.test(l))).toHaveLength(2)
   })
 
   it('renders a client their own farm\'s plan the same way', async () => {
@@ -141,7 +147,13 @@ describe('the server-rendered plan page', () => {
     expect(html).toContain('&lt;/script&gt;&lt;script&gt;alert(1)&lt;/script&gt;&lt;!-- &amp;')
     const text = dataElement.exec(html)![1]!
     expect(text).not.toMatch(/[<>&\u2028\u2029]/)
-    expect((JSON.parse(text) as { plan: PlanView }).plan).toEqual(plan)
+    expect(JSON.parse(text)).toMatchObject({ planId: String(id) })
+    // the data element's escaping, with the same text in every part it may hold
+    const element = pageDataScript({ session: JSON.stringify({ user: { name: hostile } }), planId: hostile, versions: JSON.stringify({ versions: [hostile] }), router: '{}' })
+    const inner = /^<script type="application\/json" id="pitside-page-data">([^<]*)<\/script>$/.exec(element)![1]!
+    expect(inner).not.toMatch(/[<>&\u2028\u2029]/)
+    expect(JSON.parse(inner)).toEqual({ session: { user: { name: hostile } }, planId: hostile, versions: { versions: [hostile] }, router: {} })
+    expect(plan.result.fields![0]!.name).toBe(hostile)
     for (const tag of scriptTags(html)) expect(tag, tag).toMatch(/\bsrc="\/assets\/|type="application\/json"/)
   })
 
