@@ -41,6 +41,16 @@ export interface RenderedPlanPage {
 const rootElement = '<div id="root"></div>'
 const maxCached = 16
 
+/**
+ * index.html with its entry script started once the page has been painted (public/after-paint.js)
+ * instead of beside the HTML: a rendered page shows from its markup and style sheet, and the
+ * script's decoding, compiling and evaluation would otherwise share the main thread with (or come
+ * before) its first layout. Unchanged when index.html has no such tag.
+ */
+export function afterPaint(index: string): string {
+  return index.replace(/<script type="module" crossorigin src="(\/assets\/[\w.-]+\.js)"><\/script>/, (_, src: string) => `<script defer src="/after-paint.js" data-entry="${src}"></script>`)
+}
+
 /** The server entry beside the built client: dist/ssr next to dist/web. */
 export function findServerEntry(webDir: string): string {
   return join(webDir, '..', 'ssr', 'entry-server.js')
@@ -57,7 +67,7 @@ export function findServerEntry(webDir: string): string {
  * so that `pitside serve` starts as fast as before.
  */
 export function planPageRenderer(deps: PlanPageDeps, options: { index: Buffer; entryFile: string }) {
-  const template = options.index.toString('utf8')
+  const template = afterPaint(options.index.toString('utf8'))
   const at = template.indexOf(rootElement)
   const headEnd = template.indexOf('</head>')
   const dataVersion = deps.sqlite.prepare<[], number>('pragma data_version').pluck()

@@ -83,14 +83,15 @@ export function pagePreloads(path: string, modules: PageModules = {}): string | 
 /**
  * The Link header of a plan page the server rendered: the figures' typeface (so that the first
  * layout of the rate tables is done with it, not done again when it arrives: one layout of a
- * 200-field plan's tables costs 250-400 ms here), the plan's answer, which the browser hydrates
- * from (the small answers are in the page), and the page's own code.
+ * 200-field plan's tables costs 250-400 ms here) and the plan's answer, which the browser hydrates
+ * from (the small answers are in the page). Not the page's code: it is started after the first
+ * paint (server/plan-page.ts, afterPaint), and fetching and compiling it earlier would compete
+ * with the first layout.
  */
-export function renderedPagePreloads(modules: PageModules, page: keyof PageModules, planId: string, fonts: string[] = []): string | null {
+export function renderedPagePreloads(planId: string, fonts: string[] = []): string | null {
   const links = [
     ...fonts.map((f) => `<${f}>; rel=preload; as=font; type="font/woff2"; crossorigin=anonymous`),
     `</api/plans/${planId}>; rel=preload; as=fetch; crossorigin=anonymous`,
-    ...(modules[page] ?? []).map((file) => `<${file}>; rel=modulepreload`),
   ]
   return links.length > 0 ? links.join(', ') : null
 }
@@ -150,7 +151,7 @@ export function webRoutes(webDir: string | null, planPage?: PlanPageDeps): Route
     if (plan) res.set('Vary', 'Cookie')
     const rendered = plan && renderPlanPage ? await renderPlanPage(req, plan[1]!) : null
     if (rendered && plan) {
-      const preloads = renderedPagePreloads(modules, 'plan', plan[1]!, fonts)
+      const preloads = renderedPagePreloads(plan[1]!, fonts)
       if (preloads) res.set('Link', preloads)
       // one user's page: never stored by a browser's or a proxy's cache
       res.set('Cache-Control', 'private, no-store').set('Vary', 'Cookie, Accept-Encoding').type('html')
