@@ -416,13 +416,15 @@ function Totals({ plan }: { plan: PlanView }) {
   ]
   if (num(planned.gal)) items.push(['Liquid manure', `${fmt(planned.gal)} gal`])
   if (num(planned.ton)) items.push(['Solid manure', `${fmt(planned.ton)} ton`])
-  if (Object.keys(sup).length) items.push(['Fertilizer still needed, whole farm', `${nutrients.map((k) => fmt(sup[k])).join('–')} lb N–P₂O₅–K₂O`])
+  // the three figures and their units are too long for half a phone's width: this one takes a whole row there
+  const wide = 'Fertilizer still needed, whole farm'
+  if (Object.keys(sup).length) items.push([wide, `${nutrients.map((k) => fmt(sup[k])).join('–')} lb N–P₂O₅–K₂O`])
   return (
     <dl className="grid grid-cols-2 gap-x-6 gap-y-2 rounded-md border border-line bg-surface p-4 text-sm sm:grid-cols-4">
       {items.map(([k, v]) => (
-        <div key={k}>
+        <div key={k} className={k === wide ? 'col-span-2 min-w-0' : 'min-w-0'}>
           <dt className="text-muted">{k}</dt>
-          <dd className="num text-left text-base font-semibold">{v}</dd>
+          <dd className="num text-left text-base font-semibold break-words">{v}</dd>
         </div>
       ))}
     </dl>
