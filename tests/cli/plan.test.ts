@@ -128,8 +128,8 @@ describe('pitside plan', () => {
     const db = copyOfDemo()
     const { plans } = await planJson(db, ['--farm', 'QBF', '--farm', 'LKP'])
     for (const plan of plans) {
-      const [{ inputs }] = query<{ inputs: string }>(db, 'select inputs from plans where id = ?', plan.id)
-      const stored = JSON.parse(inputs)
+      const [row] = query<{ inputs: string }>(db, 'select inputs from plans where id = ?', plan.id)
+      const stored = JSON.parse(row!.inputs)
       const picked = [plan.fields[0], plan.fields.find((f: any) => f.method !== plan.fields[0].method)].filter(Boolean)
       for (const field of picked) {
         const code = field.field

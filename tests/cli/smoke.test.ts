@@ -17,7 +17,7 @@ describe('pitside binary', () => {
   it('prints its version', async () => {
     const r = await runCli(['--version'])
     expect(r.exitCode).toBe(0)
-    expect(r.stdout.trim()).toMatch(/^\d+\.\d+\.\d+$/)
+    expect(String(r.stdout).trim()).toMatch(/^\d+\.\d+\.\d+$/)
   })
 
   it('treats a second init as a no-op and says so', async () => {
