@@ -110,6 +110,28 @@ describe('the server-rendered plan page in a browser', () => {
     }
   })
 
+  it('renders the page itself, saying why, when the plan it would hydrate from cannot be fetched', async () => {
+    const context = await signedInContext()
+    try {
+      const page = await context.newPage()
+      const uncaught: string[] = []
+      page.on('pageerror', (e) => uncaught.push(String(e)))
+      await markServerRows(page)
+      // the session ends between the page and the plan's answer (the preload and the fetch alike)
+      await page.route(`${server.url}/api/plans/${demo.planId}`, (route) =>
+        route.fulfill({ status: 401, contentType: 'application/json', body: JSON.stringify({ code: 'unauthorized', message: 'sign in first' }) }),
+      )
+      await page.goto(`${server.url}/plans/${demo.planId}`)
+      // the server's rows were shown first; the browser then renders the page, which says what happened
+      await page.getByText('Your session has ended').waitFor()
+      expect(await page.evaluate(() => (window as unknown as { serverRows: number }).serverRows)).toBeGreaterThan(0)
+      expect(await page.locator(ratesRows).count()).toBe(0)
+      expect(uncaught).toEqual([])
+    } finally {
+      await context.close()
+    }
+  })
+
   it('looks the same before its scripts run as after hydration', async () => {
     const boxes: Record<string, unknown> = {}
     for (const [name, javaScriptEnabled] of [['no-js', false], ['hydrated', true]] as const) {
