@@ -88,12 +88,10 @@ export function pagePreloads(path: string, modules: PageModules = {}): string | 
  * paint (server/plan-page.ts, afterPaint), and fetching and compiling it earlier would compete
  * with the first layout.
  */
-export function renderedPagePreloads(planId: string, fonts: string[] = []): string | null {
-  const links = [
-    ...fonts.map((f) => `<${f}>; rel=preload; as=font; type="font/woff2"; crossorigin=anonymous`),
-    `</api/plans/${planId}>; rel=preload; as=fetch; crossorigin=anonymous`,
-  ]
-  return links.length > 0 ? links.join(', ') : null
+export function renderedPagePreloads(planId: string, fonts: string[] = []): string {
+  const links = fonts.map((f) => `<${f}>; rel=preload; as=font; type="font/woff2"; crossorigin=anonymous`)
+  links.push(`</api/plans/${planId}>; rel=preload; as=fetch; crossorigin=anonymous`)
+  return links.join(', ')
 }
 
 const compressible = new Set(['.js', '.css', '.svg', '.json', '.html', '.map', '.txt'])
@@ -150,9 +148,8 @@ export function webRoutes(webDir: string | null, planPage?: PlanPageDeps): Route
     // the same address answers differently with and without a session
     if (plan) res.set('Vary', 'Cookie')
     const rendered = plan && renderPlanPage ? await renderPlanPage(req, plan[1]!) : null
-    if (rendered && plan) {
-      const preloads = renderedPagePreloads(plan[1]!, fonts)
-      if (preloads) res.set('Link', preloads)
+    if (plan && rendered) {
+      res.set('Link', renderedPagePreloads(plan[1]!, fonts))
       // one user's page: never stored by a browser's or a proxy's cache
       res.set('Cache-Control', 'private, no-store').set('Vary', 'Cookie, Accept-Encoding').type('html')
       if (acceptsGzip(req.headers['accept-encoding'])) res.set('Content-Encoding', 'gzip').send(rendered.gzip)

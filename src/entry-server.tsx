@@ -8,7 +8,7 @@ import { createStaticHandler, createStaticRouter, StaticRouterProvider } from 'r
 import type { PlanVersionsResponse, PlanView, SessionResponse } from '../shared/api-types.ts'
 import { appRoutes } from './app-routes.tsx'
 import { rateTablesEndId } from './components/plan-body.tsx'
-import { pageDataScript, seedQueries, type PageData } from './page-data.ts'
+import { pageDataScript, seedQueries } from './page-data.ts'
 
 export interface PlanPageInput {
   /** The page's URL, e.g. http://host/plans/12. */
@@ -37,8 +37,7 @@ export interface RenderedPage {
 export async function renderPlanPage(input: PlanPageInput): Promise<RenderedPage | null> {
   // a cache per request: nothing of one user's page may reach another's
   const queryClient = new QueryClient({ defaultOptions: { queries: { refetchOnWindowFocus: false, retry: false } } })
-  const data: Omit<PageData, 'router'> = { session: input.session, planId: input.planId, versions: input.versions }
-  seedQueries(queryClient, { ...data, router: {} }, JSON.parse(input.planJson) as PlanView)
+  seedQueries(queryClient, { session: input.session, planId: input.planId, versions: input.versions, router: {} }, JSON.parse(input.planJson) as PlanView)
   const handler = createStaticHandler(appRoutes(queryClient))
   const context = await handler.query(new Request(input.url))
   if (context instanceof Response) return null
@@ -52,7 +51,6 @@ export async function renderPlanPage(input: PlanPageInput): Promise<RenderedPage
       </QueryClientProvider>
     </StrictMode>,
   )
-  const hydration = { loaderData: context.loaderData, actionData: context.actionData, errors: context.errors }
   return {
     // no frame until the rate tables are parsed: the browser would otherwise lay out the growing
     // table once per frame while the page arrives, several times over for a long plan (one layout
@@ -60,10 +58,10 @@ export async function renderPlanPage(input: PlanPageInput): Promise<RenderedPage
     head: `<link rel="expect" href="#${rateTablesEndId}" blocking="render">`,
     root,
     data: pageDataScript({
-      session: JSON.stringify(input.session),
+      session: input.session,
       planId: input.planId,
-      versions: JSON.stringify(input.versions),
-      router: JSON.stringify(hydration),
+      versions: input.versions,
+      router: { loaderData: context.loaderData, actionData: context.actionData, errors: context.errors },
     }),
   }
 }

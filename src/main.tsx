@@ -37,17 +37,12 @@ async function resolveLazyRoutes(all: RouteObject[]): Promise<void> {
  * plan that cannot be fetched now leaves the page to render itself, which shows why.
  */
 async function start() {
+  const renderHere = () => createRoot(container).render(app(createBrowserRouter(routes)))
   const data = readPageData(document)
-  if (!data) {
-    createRoot(container).render(app(createBrowserRouter(routes)))
-    return
-  }
+  if (!data) return renderHere()
   seedQueries(queryClient, data)
   const [, plan] = await Promise.allSettled([resolveLazyRoutes(routes), queryClient.fetchQuery(planQueryOptions(data.planId))])
-  if (plan.status === 'rejected') {
-    createRoot(container).render(app(createBrowserRouter(routes)))
-    return
-  }
+  if (plan.status === 'rejected') return renderHere()
   hydrateRoot(container, app(createBrowserRouter(routes, { hydrationData: data.router })))
 }
 

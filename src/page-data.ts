@@ -31,13 +31,9 @@ export function escapeJsonForScript(json: string): string {
   return json.replace(/[<>&\u2028\u2029]/g, (c) => unsafe[c]!)
 }
 
-/**
- * The data element of a page, from the JSON texts of its parts (the plan's text is passed as it is
- * stored for the API, so that it is not serialized again). Not executable: the CSP allows no inline script.
- */
-export function pageDataScript(parts: { session: string; planId: string; versions: string; router: string }): string {
-  const json = `{"session":${parts.session},"planId":${JSON.stringify(parts.planId)},"versions":${parts.versions},"router":${parts.router}}`
-  return `<script type="application/json" id="${pageDataId}">${escapeJsonForScript(json)}</script>`
+/** The data element of a page. Not executable: the CSP allows no inline script. */
+export function pageDataScript(data: PageData): string {
+  return `<script type="application/json" id="${pageDataId}">${escapeJsonForScript(JSON.stringify(data))}</script>`
 }
 
 /** The page's data when the server rendered it, else null (a page the browser renders itself). */

@@ -122,12 +122,14 @@ export function currentLabResultsReader(sqlite: SQLite.Database): (reportNumber:
   return (reportNumber) => {
     if (reportNumber === lastNumber) return last
     let found = cache.get(reportNumber)
-    if (found) {
-      lastNumber = reportNumber
-      last = found
-      return found
-    }
-    found = new Map()
+    if (!found) found = readReport(reportNumber)
+    lastNumber = reportNumber
+    last = found
+    return found
+  }
+
+  function readReport(reportNumber: string): Map<string, StoredLabResult> {
+    const found = new Map<string, StoredLabResult>()
     for (const r of query.all(reportNumber) as Record<string, any>[]) {
       found.set(r.sample_code, {
         id: r.id,
@@ -147,8 +149,6 @@ export function currentLabResultsReader(sqlite: SQLite.Database): (reportNumber:
       })
     }
     cache.set(reportNumber, found)
-    lastNumber = reportNumber
-    last = found
     return found
   }
 }

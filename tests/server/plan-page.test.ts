@@ -152,7 +152,7 @@ describe('the server-rendered plan page', () => {
     expect(text).not.toMatch(/[<>&\u2028\u2029]/)
     expect(JSON.parse(text)).toMatchObject({ planId: String(id) })
     // the data element's escaping, with the same text in every part it may hold
-    const element = pageDataScript({ session: JSON.stringify({ user: { name: hostile } }), planId: hostile, versions: JSON.stringify({ versions: [hostile] }), router: '{}' })
+    const element = pageDataScript({ session: { user: { name: hostile } }, planId: hostile, versions: { versions: [hostile] }, router: {} } as unknown as Parameters<typeof pageDataScript>[0])
     const inner = /^<script type="application\/json" id="pitside-page-data">([^<]*)<\/script>$/.exec(element)![1]!
     expect(inner).not.toMatch(/[<>&\u2028\u2029]/)
     expect(JSON.parse(inner)).toEqual({ session: { user: { name: hostile } }, planId: hostile, versions: { versions: [hostile] }, router: {} })
