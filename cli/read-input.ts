@@ -4,6 +4,7 @@ import { readFile } from 'node:fs/promises'
 import { basename } from 'node:path'
 import { decodeText } from '../shared/decode-text.ts'
 import { AppError, formatProblems } from '../shared/errors.ts'
+import { takeEarlyRead } from './early-start.ts'
 
 export interface InputFile {
   /** The name used in messages: the path as given, or "stdin". */
@@ -21,12 +22,13 @@ export async function readInput(path: string): Promise<InputFile> {
 /**
  * The bytes of a file or of standard input, without their hash (see readInput). With `shared`, a
  * file is read into shared memory, so that another thread can work on the same bytes (standard
- * input is read as usual). Throws AppError('io') when unreadable.
+ * input is read as usual), or taken from the read that cli/early-start.ts started. Throws
+ * AppError('io') when unreadable.
  */
 export async function readInputBytes(path: string, options: { shared?: boolean } = {}): Promise<{ name: string; bytes: Buffer }> {
   let bytes: Buffer
   try {
-    bytes = path === '-' ? await readStdin() : options.shared ? readShared(path) : await readFile(path)
+    bytes = path === '-' ? await readStdin() : options.shared ? ((await takeEarlyRead(path)) ?? readShared(path)) : await readFile(path)
   } catch (error) {
     const code = (error as NodeJS.ErrnoException).code
     if (code === 'ENOENT') throw new AppError('not_found', `${path}: no such file`)

@@ -20,6 +20,7 @@ import { checkLabRow, emptyLabResultValues, type LabCheckContext, type LabResult
 import { bookValuesForStorage } from '../../shared/lab-book-values.ts'
 import type { ActionModule } from '../lazy.ts'
 import { note, printJson, printTable } from '../output.ts'
+import { takeEarlyLabWriter } from '../early-start.ts'
 import { readInput, readInputBytes } from '../read-input.ts'
 import { withAdvisorSqlite } from './advisor-sqlite.ts'
 
@@ -95,8 +96,12 @@ function emptySummary(file: string, sha256: string | null): LabFileSummary {
  */
 export async function importLabFiles(deps: LabImportDeps, files: readonly string[], options: LabImportOptions = {}): Promise<LabImportSummary> {
   const { sqlite } = deps
-  // the first file's writer thread (when it is big) starts now and loads while the file is read
-  const spare = { writer: files[0] && files[0] !== '-' ? spareLabWriter(sqlite, sizeOf(files[0])) : null }
+  // the first file's writer thread (when it is big) loads while the file is read: started by the
+  // command line before the program loaded (cli/early-start.ts), or now
+  const early = takeEarlyLabWriter()
+  const first = files[0] !== undefined && files[0] !== '-' ? files[0] : null
+  const spare = { writer: first ? spareLabWriter(sqlite, sizeOf(first), early) : null }
+  if (!first) void early?.worker.terminate()
   try {
     return await importAll(sqlite, files, options, spare)
   } finally {

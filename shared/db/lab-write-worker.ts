@@ -12,7 +12,7 @@ import type { WorkerReply, WorkerRequest, WriteFailure } from './lab-writer.ts'
  * Each batch done is counted in `control[0]` so that the parser never runs far ahead; the first
  * failure sets `control[1]`, later batches are dropped and the failure is the answer to `finish`.
  */
-const { file, control: controlBuffer } = workerData as { file: string; control: SharedArrayBuffer }
+const { control: controlBuffer } = workerData as { control: SharedArrayBuffer }
 const control = new Int32Array(controlBuffer)
 const port = parentPort!
 const reply = (m: WorkerReply) => port.postMessage(m)
@@ -26,6 +26,8 @@ function failureOf(error: unknown): WriteFailure {
 let sqlite: SQLite.Database | undefined
 let write: LabFileWrite | undefined
 let failure: WriteFailure | null = null
+/** the numbers of the batches, in shared memory that the parser fills again once a batch is done */
+let ring: Float64Array[] = []
 
 const fail = (error: unknown) => {
   failure ??= failureOf(error)
@@ -40,13 +42,16 @@ const done = () => {
 }
 
 function onMessage(m: WorkerRequest) {
-  if (m.type === 'begin') return begin(m.meta)
+  if (m.type === 'begin') {
+    ring = m.ring.map((b) => new Float64Array(b))
+    return begin(m.file, m.meta)
+  }
   if (m.type === 'close') return done()
   if (m.type === 'hash') return reply({ type: 'hashed', sha256: createHash('sha256').update(new Uint8Array(m.buffer, m.offset, m.length)).digest('hex') })
   if (m.type === 'rows') {
     if (!failure && write) {
       try {
-        write.insert(m.words, m.text.split('\u0000'), new Float64Array(m.numbers), m.count)
+        write.insert(m.words, m.text.split('\u0000'), ring[m.slot]!, m.count)
       } catch (error) {
         fail(error)
       }
@@ -76,7 +81,7 @@ function onMessage(m: WorkerRequest) {
 }
 
 /** Opens the connection and the file's transaction once the file is known (the thread may start before). */
-function begin(meta: LabFileMeta) {
+function begin(file: string, meta: LabFileMeta) {
   try {
     sqlite = openWriterSqlite(file)
     write = beginLabFileWrite(sqlite, meta, { mayRebuildIndexes: true })

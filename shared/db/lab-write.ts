@@ -25,6 +25,11 @@ const N_BASIS = 17, N_UNITS = 18, N_PER_UNIT = 19, N_LAB = 20
 /** Which of a row's optional strings follow its sample code and reported cells (in this order). */
 const F_QUALIFIERS = 1, F_NOTES = 2, F_WARNINGS = 4
 
+/** Values bound per result row (the import run is written into the statement). */
+const rowParameters = 23
+/** Rows per insert statement (SQLite allows 32,766 values in one statement). */
+export const chunkRows = 64
+
 /** Rows per batch: big enough that a batch costs little to hand over, small enough to keep memory flat. */
 export const batchRows = 4096
 /** Rows of a file's first batch for a writer thread: small, so that the writer starts soon after the reading. */
@@ -72,11 +77,14 @@ export class LabRowBatch {
   readonly numbers: Float64Array
   count = 0
 
+  /** `numbers`: a buffer to fill again (of at least capacity × rowNumbers), instead of a new one */
   constructor(
     private readonly words: LabWordList,
     private readonly capacity = batchRows,
+    numbers?: Float64Array,
   ) {
-    this.numbers = new Float64Array(capacity * rowNumbers)
+    if (numbers && numbers.length < capacity * rowNumbers) throw new Error(`a batch of ${capacity} rows needs ${capacity * rowNumbers} numbers, not ${numbers.length}`)
+    this.numbers = numbers ?? new Float64Array(capacity * rowNumbers)
   }
 
   get full(): boolean {
@@ -178,7 +186,7 @@ const num = (x: number) => (x !== x ? null : x)
 
 export interface LabFileWrite {
   readonly runId: number
-  /** results added so far */
+  /** results added so far (some may wait for the next multi-row insert, at the latest the commit) */
   readonly count: number
   readonly replaced: number
   /** Inserts a batch's rows, after adding the batch's new words. Throws LabRowWriteError naming the row. */
@@ -239,40 +247,54 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
     }
   }
 
-  // One insert statement per combination of the values that repeat (form, species, basis, units):
-  // they and the import run are written into its SQL as literals, so each row binds 18 values, not
-  // 24. A result's report number and time are its lab report's and its import run's.
-  const literal = (text: string) => `'${text.replace(/'/g, "''")}'`
-  const inserts = new Map<string, SQLite.Statement>()
-  const insertFor = (form: string, species: string, basis: string, units: string, perUnit: string) => {
-    const key = form + '\u0000' + species + '\u0000' + basis + '\u0000' + units + '\u0000' + perUnit
-    let statement = inserts.get(key)
-    if (!statement) {
-      statement = sqlite.prepare(
-        `insert into lab_results (lab_report_id, storage_id, sampling_event_id, sample_code, sampled_on, line,
-           reported, qualifiers, dry_matter_pct, total_n, ammonium_n, organic_n, p2o5, k2o, sulfur, ph, notes, warnings,
-           form, species, basis, units, per_unit, import_run_id)
-         values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?,
-           ${literal(form)}, ${literal(species)}, ${literal(basis)}, ${literal(units)}, ${literal(perUnit)}, ${runId})`,
-      )
-      inserts.set(key, statement)
+  // Rows go in `chunkRows` at a time, with one multi-row insert: better-sqlite3's cost per call
+  // (binding, stepping, the result object) is as large as SQLite's own work for a row
+  // (docs/performance.md). Rows that supersede a stored result go in alone (their new id is needed).
+  const columns = `lab_report_id, storage_id, sampling_event_id, sample_code, sampled_on, line, reported, qualifiers,
+    dry_matter_pct, total_n, ammonium_n, organic_n, p2o5, k2o, sulfur, ph, notes, warnings, form, species, basis, units, per_unit, import_run_id`
+  const rowValues = `(${'?, '.repeat(rowParameters)}${runId})`
+  const insertOne = sqlite.prepare(`insert into lab_results (${columns}) values ${rowValues}`)
+  const insertChunk = sqlite.prepare(`insert into lab_results (${columns}) values ${Array(chunkRows).fill(rowValues).join(', ')}`)
+  /** the values of the rows not inserted yet, rowParameters per row */
+  const pending: unknown[] = new Array(chunkRows * rowParameters)
+  let pendingRows = 0
+  /** Inserts the pending rows; a failed chunk is inserted again row by row, to name the row that fails. */
+  const flush = () => {
+    if (pendingRows === 0) return
+    const rows = pendingRows
+    pendingRows = 0
+    if (rows === chunkRows) {
+      try {
+        insertChunk.run(...pending)
+        count += rows
+        return
+      } catch (error) {
+        // SQLite undid the failed statement: nothing of the chunk is in; find the row
+        if (!sqlite.inTransaction) throw new LabRowWriteError(pending[5] as number, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+      }
     }
-    return statement
+    for (let r = 0; r < rows; r++) {
+      const o = r * rowParameters
+      try {
+        insertOne.run(...pending.slice(o, o + rowParameters))
+        count++
+      } catch (error) {
+        throw new LabRowWriteError(pending[o + 5] as number, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+      }
+    }
   }
   const words: string[] = []
   const reports = new Map<number, number>() // word of the report number → lab report id
   const storages = new Set<number>()
   const events = new Set<number>()
   let lastStorage = -1
-  const lastWords = [-1, -1, -1, -1, -1] // form, species, basis, units, per unit of the statement in use
-  let insert: SQLite.Statement | null = null
   let count = 0
   let replaced = 0
 
   return {
     runId,
     get count() {
-      return count
+      return count + pendingRows
     },
     get replaced() {
       return replaced
@@ -283,55 +305,73 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
       for (let i = 0; i < rows; i++) {
         const o = i * rowNumbers
         const flags = n[o + N_FLAGS]!
+        const line = n[o + N_LINE]!
+        let reportId: number | undefined
         try {
           const reportWord = n[o + N_REPORT]!
-          let reportId = reports.get(reportWord)
+          reportId = reports.get(reportWord)
           if (reportId === undefined) {
             const lab = n[o + N_LAB]!
             reportId = Number(insertReport.run(lab !== lab ? null : words[lab], words[reportWord]!, meta.fileName, meta.sha256, runId).lastInsertRowid)
             reports.set(reportWord, reportId)
           }
-          const storageId = n[o + N_STORAGE]!
-          if (storageId !== lastStorage) {
-            storages.add(storageId)
-            lastStorage = storageId
-          }
-          const eventId = num(n[o + N_EVENT]!)
-          if (eventId !== null) events.add(eventId)
-          const form = n[o + N_FORM]!, species = n[o + N_SPECIES]!, basis = n[o + N_BASIS]!, units = n[o + N_UNITS]!, perUnit = n[o + N_PER_UNIT]!
-          if (!insert || form !== lastWords[0] || species !== lastWords[1] || basis !== lastWords[2] || units !== lastWords[3] || perUnit !== lastWords[4]) {
-            insert = insertFor(words[form]!, words[species]!, words[basis]!, words[units]!, words[perUnit]!)
-            lastWords[0] = form
-            lastWords[1] = species
-            lastWords[2] = basis
-            lastWords[3] = units
-            lastWords[4] = perUnit
-          }
-          // the values as arguments, not one array: better-sqlite3 reads an array's items one property look-up at a time
-          const sample = s[k++]
-          const reported = s[k++]
-          const qualifiers = flags & F_QUALIFIERS ? s[k++] : null
-          const notes = flags & F_NOTES ? s[k++] : null
-          const warnings = flags & F_WARNINGS ? s[k++] : null
-          const { lastInsertRowid } = insert.run(
-            reportId, storageId, eventId, sample, words[n[o + N_DATE]!], n[o + N_LINE], reported, qualifiers,
-            num(n[o + N_DM]!), n[o + N_TOTAL_N], num(n[o + N_NH4]!), num(n[o + N_ORG_N]!), num(n[o + N_P2O5]!), num(n[o + N_K2O]!),
-            num(n[o + N_SULFUR]!), num(n[o + N_PH]!), notes, warnings,
-          )
-          const supersedes = num(n[o + N_SUPERSEDES]!)
-          if (supersedes !== null) {
-            supersede.run(lastInsertRowid, supersedes)
-            replaced++
-          }
-          count++
         } catch (error) {
-          throw new LabRowWriteError(n[o + N_LINE]!, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+          throw new LabRowWriteError(line, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+        }
+        const storageId = n[o + N_STORAGE]!
+        if (storageId !== lastStorage) {
+          storages.add(storageId)
+          lastStorage = storageId
+        }
+        const eventId = num(n[o + N_EVENT]!)
+        if (eventId !== null) events.add(eventId)
+        const p = pending
+        const v = pendingRows * rowParameters
+        p[v] = reportId
+        p[v + 1] = storageId
+        p[v + 2] = eventId
+        p[v + 3] = s[k++]
+        p[v + 4] = words[n[o + N_DATE]!]
+        p[v + 5] = line
+        p[v + 6] = s[k++]
+        p[v + 7] = flags & F_QUALIFIERS ? s[k++] : null
+        p[v + 8] = num(n[o + N_DM]!)
+        p[v + 9] = n[o + N_TOTAL_N]
+        p[v + 10] = num(n[o + N_NH4]!)
+        p[v + 11] = num(n[o + N_ORG_N]!)
+        p[v + 12] = num(n[o + N_P2O5]!)
+        p[v + 13] = num(n[o + N_K2O]!)
+        p[v + 14] = num(n[o + N_SULFUR]!)
+        p[v + 15] = num(n[o + N_PH]!)
+        p[v + 16] = flags & F_NOTES ? s[k++] : null
+        p[v + 17] = flags & F_WARNINGS ? s[k++] : null
+        p[v + 18] = words[n[o + N_FORM]!]
+        p[v + 19] = words[n[o + N_SPECIES]!]
+        p[v + 20] = words[n[o + N_BASIS]!]
+        p[v + 21] = words[n[o + N_UNITS]!]
+        p[v + 22] = words[n[o + N_PER_UNIT]!]
+        const supersedes = num(n[o + N_SUPERSEDES]!)
+        if (supersedes === null) {
+          if (++pendingRows === chunkRows) flush()
+          continue
+        }
+        // a row that supersedes a stored result: the rows before it, then it alone
+        const values = p.slice(v, v + rowParameters)
+        flush()
+        try {
+          const { lastInsertRowid } = insertOne.run(...values)
+          count++
+          supersede.run(lastInsertRowid, supersedes)
+          replaced++
+        } catch (error) {
+          throw new LabRowWriteError(line, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
         }
       }
       if (k !== s.length) throw new Error(`a batch of ${rows} rows came with ${s.length} strings, ${k} of them read`)
     },
     commit(counts) {
       try {
+        flush()
         for (const id of storages) {
           if (!storageExists.get(id)) throw new AppError('conflict', `storage ${id} was removed while the lab file was being imported; nothing was written`)
         }

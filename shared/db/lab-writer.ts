@@ -1,11 +1,11 @@
 import type SQLite from 'better-sqlite3'
 import { existsSync } from 'node:fs'
-import { fileURLToPath } from 'node:url'
-import { Worker } from 'node:worker_threads'
+import type { Worker } from 'node:worker_threads'
 import { AppError, type ErrorCode } from '../errors.ts'
 import type { LabRow } from '../lab-csv.ts'
 import type { LabResultValues } from '../lab-results.ts'
-import { beginLabFileWrite, firstBatchRows, LabRowBatch, LabRowWriteError, LabWordList, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
+import { batchRows, beginLabFileWrite, firstBatchRows, LabRowBatch, LabRowWriteError, LabWordList, rowNumbers, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
+import { labWriteWorkerBuilt, newLabWriterThread, type LabWriterThread } from './lab-writer-thread.ts'
 
 /**
  * Writes one lab file while it is being read. For a big file (see labWriterUsesWorker), the
@@ -40,10 +40,11 @@ export type WriteFailure =
   | { kind: 'other'; code: string | null; message: string }
 
 export type WorkerRequest =
-  | { type: 'begin'; meta: LabFileMeta }
+  | { type: 'begin'; file: string; meta: LabFileMeta; ring: SharedArrayBuffer[] }
   | { type: 'close' }
   | { type: 'hash'; buffer: SharedArrayBuffer; offset: number; length: number }
-  | { type: 'rows'; words: string[]; text: string; numbers: ArrayBuffer; count: number }
+  /** a batch: its numbers are in `ring[slot]` of the begin message */
+  | { type: 'rows'; words: string[]; text: string; slot: number; count: number }
   | { type: 'finish'; counts: LabFileCounts | null }
 
 export type WorkerReply =
@@ -53,9 +54,15 @@ export type WorkerReply =
   | { type: 'rolled-back' }
   | { type: 'failed'; failure: WriteFailure }
 
-const workerFile = fileURLToPath(new URL('./lab-write-worker.js', import.meta.url))
 /** Batches the parser may run ahead of the writer (memory: about 1 MB each). */
 const maxQueued = 8
+/**
+ * The batches' numbers live in this many buffers of shared memory, filled again in turn: fresh
+ * memory costs a page fault per 4 KiB on first use, which on a virtual machine is as slow as
+ * parsing the rows it holds (docs/performance.md). One more than may be queued, so that the
+ * batch being filled never shares a buffer with one waiting to be written.
+ */
+const ringSize = maxQueued + 1
 
 function errorOf(f: WriteFailure): Error {
   if (f.kind === 'row') return new LabRowWriteError(f.line, f.code ?? undefined, f.message)
@@ -74,7 +81,7 @@ export const workerFromBytes = 1024 * 1024
 export function labWriterUsesWorker(sqlite: SQLite.Database, bytes: number | undefined): boolean {
   const mode = process.env.PITSIDE_LAB_WRITER
   if (mode === 'thread') return false
-  const possible = !sqlite.memory && sqlite.name !== '' && existsSync(sqlite.name) && existsSync(workerFile)
+  const possible = !sqlite.memory && sqlite.name !== '' && existsSync(sqlite.name) && labWriteWorkerBuilt()
   return possible && (mode === 'worker' || (bytes ?? 0) >= workerFromBytes)
 }
 
@@ -101,23 +108,22 @@ interface WorkerChannel extends SpareLabWriter {
 }
 
 /**
- * Starts a writer thread for the big file about to be imported into this database (the same rule
- * as labWriterUsesWorker), or null when that file would be written in this thread.
+ * A writer thread for the big file about to be imported into this database (the same rule as
+ * labWriterUsesWorker), or null when that file would be written in this thread. `started` is a
+ * thread started earlier (cli/early-start.ts): it is used when it is still sound, ended otherwise.
  */
-export function spareLabWriter(sqlite: SQLite.Database, bytes: number | undefined): SpareLabWriter | null {
-  if (!labWriterUsesWorker(sqlite, bytes)) return null
-  const channel = openChannel(sqlite.name)
-  channel.worker.unref()
-  return channel
+export function spareLabWriter(sqlite: SQLite.Database, bytes: number | undefined, started: LabWriterThread | null = null): SpareLabWriter | null {
+  const usable = started && started.error === null ? started : null
+  if (started && !usable) void started.worker.terminate()
+  if (!labWriterUsesWorker(sqlite, bytes)) {
+    if (usable) void usable.worker.terminate()
+    return null
+  }
+  return openChannel(usable ?? newLabWriterThread())
 }
 
-function openChannel(file: string): WorkerChannel {
-  const control = new Int32Array(new SharedArrayBuffer(8)) // [batches done, failed]
-  // the writer only turns batches into inserts: a small heap keeps the import's memory flat
-  const worker = new Worker(workerFile, {
-    workerData: { file, control: control.buffer },
-    resourceLimits: { maxYoungGenerationSizeMb: 8, maxOldGenerationSizeMb: 96 },
-  })
+function openChannel(thread: LabWriterThread): WorkerChannel {
+  const { worker, control } = thread
   const exited = new Promise<void>((resolve) => worker.once('exit', () => resolve()))
   // the worker's answers in order; an error or exit without an answer rejects the one awaited
   const answers: WorkerReply[] = []
@@ -168,7 +174,7 @@ export async function startLabFileWriter(sqlite: SQLite.Database, meta: LabFileM
     spare?.close()
     return startInThread(sqlite, meta)
   }
-  const channel = (spare as WorkerChannel | null) ?? openChannel(sqlite.name)
+  const channel = (spare as WorkerChannel | null) ?? openChannel(newLabWriterThread())
   channel.worker.ref()
   return startWorker(sqlite, meta, channel)
 }
@@ -185,7 +191,7 @@ function startInThread(sqlite: SQLite.Database, meta: LabFileMeta): LabFileWrite
     } catch (error) {
       failure = error
     }
-    batch = new LabRowBatch(words)
+    batch = new LabRowBatch(words, batchRows, batch.numbers) // written: its buffer can be filled again
   }
   return {
     runId: write.runId,
@@ -212,7 +218,8 @@ function startInThread(sqlite: SQLite.Database, meta: LabFileMeta): LabFileWrite
 
 async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta, channel: WorkerChannel): Promise<LabFileWriter> {
   const { worker, control, exited, next } = channel
-  worker.postMessage({ type: 'begin', meta } satisfies WorkerRequest)
+  const ring = Array.from({ length: ringSize }, () => new SharedArrayBuffer(batchRows * rowNumbers * Float64Array.BYTES_PER_ELEMENT))
+  worker.postMessage({ type: 'begin', file: sqlite.name, meta, ring } satisfies WorkerRequest)
   const first = await next().catch(async (error) => {
     await exited
     throw error
@@ -229,22 +236,28 @@ async function startWorker(sqlite: SQLite.Database, meta: LabFileMeta, channel: 
     if (sqlite.inTransaction) sqlite.exec('commit')
   }
   const words = new LabWordList()
-  let batch = new LabRowBatch(words, firstBatchRows)
-  let sent = 0
-  let queued = 0
   const failed = () => Atomics.load(control, 1) === 1
-  const send = () => {
-    if (batch.count === 0) return
-    // wait while the writer is more than maxQueued batches behind (it notifies after each batch)
-    for (let done = Atomics.load(control, 0); sent - done >= maxQueued && !failed(); done = Atomics.load(control, 0)) {
+  /** waits until the writer has done `count` batches or failed (it notifies after each batch) */
+  const waitDone = (count: number) => {
+    for (let done = Atomics.load(control, 0); done < count && !failed(); done = Atomics.load(control, 0)) {
       Atomics.wait(control, 0, done, 1000)
     }
+  }
+  let sent = 0
+  let queued = 0
+  let batch = new LabRowBatch(words, firstBatchRows, new Float64Array(ring[0]!))
+  const send = () => {
+    if (batch.count === 0) return
+    // wait while the writer is more than maxQueued batches behind
+    waitDone(sent - maxQueued + 1)
     if (!failed()) {
-      const message: WorkerRequest = { type: 'rows', words: words.take(), text: batch.strings.join('\u0000'), numbers: batch.numbers.buffer as ArrayBuffer, count: batch.count }
-      worker.postMessage(message, [batch.numbers.buffer as ArrayBuffer])
+      const message: WorkerRequest = { type: 'rows', words: words.take(), text: batch.strings.join('\u0000'), slot: sent % ringSize, count: batch.count }
+      worker.postMessage(message)
       sent++
     }
-    batch = new LabRowBatch(words)
+    // the next batch's buffer was last used by batch sent - ringSize: it must have been written
+    waitDone(sent - ringSize + 1)
+    batch = new LabRowBatch(words, batchRows, new Float64Array(ring[sent % ringSize]!))
   }
   return {
     runId: first.runId,
