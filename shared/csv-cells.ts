@@ -134,18 +134,18 @@ export function detectDecimalMark(delimiter: string, sampleCells: readonly strin
 const pow10 = [1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15]
 
 /**
- * The value of text[from, to) when it is a plain decimal (digits, optionally a point and more
- * digits: `\d+(\.\d+)?`), read from the characters without slicing the text; -1 when it is not.
+ * The value of the UTF-8 text bytes[from, to) when it is a plain decimal (digits, optionally a point and more
+ * digits: `\d+(\.\d+)?`), read from the bytes without making a string; -1 when it is not.
  * Equal to Number() of the same text: with at most 15 digits the digits make an exact integer and
  * dividing it by an exact power of ten rounds once, as Number() does; longer texts go through Number().
  */
-export function readPlainDecimal(text: string, from: number, to: number): number {
+export function readPlainDecimal(text: Uint8Array, from: number, to: number): number {
   let i = from
   let m = 0
   let digits = 0
   let c = 0
   for (; i < to; i++) {
-    c = text.charCodeAt(i)
+    c = text[i]!
     if (c < 48 || c > 57) break
     m = m * 10 + (c - 48)
     digits++
@@ -155,40 +155,40 @@ export function readPlainDecimal(text: string, from: number, to: number): number
   if (i < to) {
     if (c !== 46 /* . */ || i + 1 === to) return -1
     for (i++; i < to; i++) {
-      c = text.charCodeAt(i)
+      c = text[i]!
       if (c < 48 || c > 57) return -1
       m = m * 10 + (c - 48)
       decimals++
     }
     digits += decimals
   }
-  if (digits > 15) return Number(text.slice(from, to))
+  if (digits > 15) return Number(String.fromCharCode(...text.subarray(from, to)))
   return decimals === 0 ? m : m / pow10[decimals]!
 }
 
 /**
  * Whether text[from, to) is a decimal written the way String(Number(text)) writes it back, with at
  * most 6 integer digits and 8 decimals: the pattern `canonicalDecimal` of shared/lab-reported.ts,
- * checked on the characters in place.
+ * checked on the bytes in place.
  */
-export function isCanonicalDecimalAt(text: string, from: number, to: number): boolean {
+export function isCanonicalDecimalAt(text: Uint8Array, from: number, to: number): boolean {
   if (from >= to) return false
   let i = from
-  const first = text.charCodeAt(i++)
+  const first = text[i++]!
   if (first >= 49 && first <= 57) {
     for (let n = 0; n < 5 && i < to; n++, i++) {
-      const c = text.charCodeAt(i)
+      const c = text[i]!
       if (c < 48 || c > 57) break
     }
   } else if (first !== 48) return false
   if (i === to) return true
-  if (text.charCodeAt(i) !== 46) return false
+  if (text[i]! !== 46) return false
   i++
   const decimals = to - i
   if (decimals < 1 || decimals > 8) return false
   for (let k = i; k < to; k++) {
-    const c = text.charCodeAt(k)
+    const c = text[k]!
     if (c < 48 || c > 57) return false
   }
-  return text.charCodeAt(to - 1) !== 48
+  return text[to - 1] !== 48
 }

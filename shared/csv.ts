@@ -54,41 +54,69 @@ export function parseCsv(input: string, options: { delimiter?: string } = {}): C
   return cursor.problem ? { records, lines, delimiter, problem: cursor.problem } : { records, lines, delimiter }
 }
 
+/** A Node Buffer with the decoding slices Node gives every Buffer (not in its type declarations). */
+export type TextBytes = Buffer & { latin1Slice(start: number, end: number): string; utf8Slice(start: number, end: number): string }
+
+/** The bytes of `input` as TextBytes: a string is encoded as UTF-8; bytes are used in place, not copied. */
+export function textBytes(input: string | Uint8Array): TextBytes {
+  if (typeof input === 'string') return Buffer.from(input, 'utf8') as TextBytes
+  return (Buffer.isBuffer(input) ? input : Buffer.from(input.buffer, input.byteOffset, input.byteLength)) as TextBytes
+}
+
+/**
+ * Bytes of the byte-order marks at the start of `bytes` (EF BB BF, some exports write two): a
+ * reader of the bytes skips them as a decoder and the reader of the text each skip one.
+ */
+export function leadingMarks(bytes: Uint8Array): number {
+  let i = 0
+  while (bytes[i] === 0xef && bytes[i + 1] === 0xbb && bytes[i + 2] === 0xbf) i += 3
+  return i
+}
+
+/** The text of bytes[start, end) (UTF-8; ASCII without decoding). */
+export function spanText(bytes: TextBytes, start: number, end: number): string {
+  for (let i = start; i < end; i++) if (bytes[i]! >= 0x80) return bytes.utf8Slice(start, end)
+  return bytes.latin1Slice(start, end)
+}
+
 /**
  * The reader behind parseCsv, one record at a time and without a string per cell: `next()` reads
- * the next record (leaving out blank lines) and leaves its cells as offsets into the text, so that
- * a caller slices only the cells it keeps and reads numbers from the characters.
+ * the next record (leaving out blank lines) and leaves its cells as byte offsets into the UTF-8
+ * text, so that a caller makes strings only of the cells it keeps and reads numbers from the bytes
+ * (a big lab file is read without ever becoming one string). A string given is encoded first.
  * Pure; never throws.
  */
 export class CsvCursor {
   /** cells in the current record */
   count = 0
-  /** start of each cell's text (inside the quotes for a quoted cell); -1 for a cell with doubled quotes, see `escaped` */
+  /** start of each cell's bytes (inside the quotes for a quoted cell); -1 for a cell with doubled quotes, see `escaped` */
   starts = new Int32Array(32)
-  /** end (exclusive) of each cell's text */
+  /** end (exclusive) of each cell's bytes */
   ends = new Int32Array(32)
   /** the unquoted text of cells whose start is -1 */
   escaped: string[] = []
   /** 1-based line on which the current record starts */
   line = 0
-  /** offset in the text at which the current record starts (give it to `seek` to read the record again) */
+  /** byte offset at which the current record starts (give it to `seek` to read the record again) */
   start = 0
   /** set when reading stopped at a malformed quote; the record it is in is not returned */
   problem: Problem | undefined
-  readonly text: string
+  /** the text's UTF-8 bytes: the offsets are into these */
+  readonly bytes: TextBytes
   private readonly d: number
   private pos: number
   private nextLine = 1
 
-  constructor(text: string, delimiter: string) {
-    this.text = text
+  constructor(text: string | Uint8Array, delimiter: string) {
+    const b = textBytes(text)
+    this.bytes = b
     this.d = delimiter.charCodeAt(0)
-    this.pos = text.charCodeAt(0) === 0xfeff ? 1 : 0
+    this.pos = leadingMarks(b)
   }
 
   /** Reads the next record; false at the end of the text or at a malformed quote (see `problem`). */
   next(): boolean {
-    const text = this.text
+    const text = this.bytes
     const d = this.d
     const n = text.length
     let i = this.pos
@@ -99,12 +127,12 @@ export class CsvCursor {
       let count = 0
       for (;;) {
         if (count === this.starts.length) this.grow()
-        if (i < n && text.charCodeAt(i) === QUOTE) {
+        if (i < n && text[i] === QUOTE) {
           let value: string | null = null
           let from = i + 1
           let j = from
           for (;;) {
-            const q = text.indexOf('"', j)
+            const q = text.indexOf(QUOTE, j)
             if (q === -1) {
               return this.stop(n, line, {
                 code: 'csv_quote_not_closed',
@@ -113,12 +141,12 @@ export class CsvCursor {
               })
             }
             for (let k = j; k < q; k++) {
-              const c = text.charCodeAt(k)
+              const c = text[k]
               if (c === LF) line++
-              else if (c === CR && text.charCodeAt(k + 1) !== LF) line++
+              else if (c === CR && text[k + 1] !== LF) line++
             }
-            if (text.charCodeAt(q + 1) === QUOTE) {
-              value = (value ?? '') + text.slice(from, q + 1)
+            if (text[q + 1] === QUOTE) {
+              value = (value ?? '') + spanText(text, from, q + 1)
               from = q + 2
               j = from
               continue
@@ -129,13 +157,13 @@ export class CsvCursor {
             } else {
               this.starts[count] = -1
               this.ends[count] = -2
-              this.escaped[count] = value + text.slice(from, q)
+              this.escaped[count] = value + spanText(text, from, q)
             }
             count++
             i = q + 1
             break
           }
-          const c = i < n ? text.charCodeAt(i) : -1
+          const c = i < n ? text[i]! : -1
           if (c === d) i++
           else if (c === LF || c === CR || c === -1) break
           else {
@@ -149,7 +177,7 @@ export class CsvCursor {
           let j = i
           let c = -1
           for (; j < n; j++) {
-            c = text.charCodeAt(j)
+            c = text[j]!
             if (c === d || c === LF || c === CR) break
             if (c === QUOTE) {
               return this.stop(n, line, {
@@ -168,9 +196,9 @@ export class CsvCursor {
         }
       }
       if (i < n) {
-        const c = text.charCodeAt(i)
+        const c = text[i]
         if (c === CR) {
-          i += text.charCodeAt(i + 1) === LF ? 2 : 1
+          i += text[i + 1] === LF ? 2 : 1
           line++
         } else if (c === LF) {
           i++
@@ -192,7 +220,7 @@ export class CsvCursor {
     return false
   }
 
-  /** Goes back (or on) to the record that starts at `offset`, read by the next `next()` as on `line`. */
+  /** Goes back (or on) to the record that starts at byte `offset`, read by the next `next()` as on `line`. */
   seek(offset: number, line = 1): void {
     this.pos = offset
     this.nextLine = line
@@ -203,7 +231,7 @@ export class CsvCursor {
   cell(k: number): string {
     if (k >= this.count) return ''
     const s = this.starts[k]!
-    return s === -1 ? this.escaped[k]! : this.text.slice(s, this.ends[k])
+    return s === -1 ? this.escaped[k]! : spanText(this.bytes, s, this.ends[k]!)
   }
 
   /** The text of cell k trimmed as String.prototype.trim trims ('' past the last cell). */
@@ -213,15 +241,15 @@ export class CsvCursor {
     if (s === -1) return this.escaped[k]!.trim()
     const e = this.ends[k]!
     if (s === e) return ''
-    const text = this.text
-    const a = text.charCodeAt(s)
-    const b = text.charCodeAt(e - 1)
+    const text = this.bytes
+    const a = text[s]!
+    const b = text[e - 1]!
     // printable ASCII at both ends: nothing to trim
-    if (a > 32 && a < 127 && b > 32 && b < 127) return text.slice(s, e)
-    return text.slice(s, e).trim()
+    if (a > 32 && a < 127 && b > 32 && b < 127) return spanText(text, s, e)
+    return spanText(text, s, e).trim()
   }
 
-  /** Whether cell k, trimmed, is `value` (compared in place, without slicing the cell). */
+  /** Whether cell k, trimmed, is `value` (compared in place, without making a string of the cell). */
   is(k: number, value: string): boolean {
     if (k >= this.count) return value === ''
     const s = this.starts[k]!
@@ -229,23 +257,27 @@ export class CsvCursor {
     const e = this.ends[k]!
     const len = e - s
     if (len === 0) return value === ''
-    const text = this.text
-    const a = text.charCodeAt(s)
-    const b = text.charCodeAt(e - 1)
-    if (!(a > 32 && a < 127 && b > 32 && b < 127)) return text.slice(s, e).trim() === value
-    if (len !== value.length) return false
-    for (let k2 = 0; k2 < len; k2++) if (text.charCodeAt(s + k2) !== value.charCodeAt(k2)) return false
+    const text = this.bytes
+    const a = text[s]!
+    const b = text[e - 1]!
+    if (!(a > 32 && a < 127 && b > 32 && b < 127)) return spanText(text, s, e).trim() === value
+    // a value with other than ASCII has more UTF-8 bytes than UTF-16 units: equal lengths mean ASCII
+    if (len !== value.length) return len > value.length && !isAscii(value) && spanText(text, s, e) === value
+    for (let k2 = 0; k2 < len; k2++) {
+      const c = value.charCodeAt(k2)
+      if (c >= 0x80 || text[s + k2] !== c) return false
+    }
     return true
   }
 
-  /** start of the trimmed text of the cell last given to `span` */
+  /** start of the trimmed bytes of the cell last given to `span` */
   spanStart = 0
-  /** end (exclusive) of the trimmed text of the cell last given to `span` */
+  /** end (exclusive) of the trimmed bytes of the cell last given to `span` */
   spanEnd = 0
 
   /**
-   * Sets spanStart and spanEnd to where cell k's trimmed text lies in the text (an empty span past
-   * the last cell); false for a cell with doubled quotes, whose text is not a span of the text.
+   * Sets spanStart and spanEnd to where cell k's trimmed text lies in the bytes (an empty span past
+   * the last cell); false for a cell with doubled quotes, whose text is not a span of the bytes.
    */
   span(k: number): boolean {
     if (k >= this.count) {
@@ -256,16 +288,17 @@ export class CsvCursor {
     if (s === -1) return false
     let e = this.ends[k]!
     if (s < e) {
-      const text = this.text
-      const a = text.charCodeAt(s)
-      const b = text.charCodeAt(e - 1)
+      const text = this.bytes
+      const a = text[s]!
+      const b = text[e - 1]!
       if (!(a > 32 && a < 127 && b > 32 && b < 127)) {
-        const raw = text.slice(s, e)
-        const start = raw.trimStart()
-        if (start === '') e = s
+        const raw = spanText(text, s, e)
+        const trimmed = raw.trim()
+        if (trimmed === '') e = s
         else {
-          s += raw.length - start.length
-          e -= raw.length - raw.trimEnd().length
+          // the trimmed-off ends as UTF-8 bytes
+          s += Buffer.byteLength(raw.slice(0, raw.length - raw.trimStart().length))
+          e -= Buffer.byteLength(raw.slice(raw.trimEnd().length))
         }
       }
     }
@@ -281,9 +314,9 @@ export class CsvCursor {
     if (s === -1) return this.escaped[k]!.trim() === ''
     const e = this.ends[k]!
     if (s === e) return true
-    const a = this.text.charCodeAt(s)
+    const a = this.bytes[s]!
     if (a > 32 && a < 127) return false
-    return this.text.slice(s, e).trim() === ''
+    return spanText(this.bytes, s, e).trim() === ''
   }
 
   private stop(n: number, line: number, problem: Problem): false {
@@ -304,12 +337,17 @@ export class CsvCursor {
   }
 }
 
-/** A 32-bit hash (FNV-1a) of the texts text[aStart, aEnd) and text[bStart, bEnd), as a pair. */
-export function hashSpans(text: string, aStart: number, aEnd: number, bStart: number, bEnd: number): number {
+function isAscii(text: string): boolean {
+  for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) >= 0x80) return false
+  return true
+}
+
+/** A 32-bit hash (FNV-1a) of the bytes bytes[aStart, aEnd) and bytes[bStart, bEnd), as a pair. */
+export function hashSpans(bytes: Uint8Array, aStart: number, aEnd: number, bStart: number, bEnd: number): number {
   let h = 0x811c9dc5 | 0
-  for (let i = aStart; i < aEnd; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193)
+  for (let i = aStart; i < aEnd; i++) h = Math.imul(h ^ bytes[i]!, 0x01000193)
   h = Math.imul(h ^ 0xffff, 0x01000193) ^ (aEnd - aStart)
-  for (let i = bStart; i < bEnd; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193)
+  for (let i = bStart; i < bEnd; i++) h = Math.imul(h ^ bytes[i]!, 0x01000193)
   return h ^ (h >>> 15)
 }
 

@@ -1,47 +1,47 @@
+import { isUtf8 } from 'node:buffer'
 import type { Problem } from './errors.ts'
 
 /**
- * Turns a file's bytes into text, refusing what is not UTF-8 text: an empty file, UTF-16,
- * binary files (NUL bytes, image signatures) and invalid UTF-8, each with the line it is on.
- * Returns the text without a byte-order mark, or a problem.
+ * Why a file's bytes are not UTF-8 text, or null when they are: an empty file, UTF-16, binary files
+ * (NUL bytes, image signatures) and invalid UTF-8, each with the line it is on. Checks without
+ * decoding, for a reader of the bytes themselves (shared/lab-csv.ts).
  */
-export function decodeText(bytes: Uint8Array): { text: string; problem?: undefined } | { text?: undefined; problem: Problem } {
-  if (bytes.length === 0) return { problem: { code: 'empty_file', line: 1, message: 'the file is empty' } }
+export function textProblem(bytes: Uint8Array): Problem | null {
+  if (bytes.length === 0) return { code: 'empty_file', line: 1, message: 'the file is empty' }
   if ((bytes[0] === 0xff && bytes[1] === 0xfe) || (bytes[0] === 0xfe && bytes[1] === 0xff)) {
-    return {
-      problem: {
-        code: 'utf16',
-        line: 1,
-        message: 'the file is UTF-16 text; save it as "CSV UTF-8" and import again',
-      },
-    }
+    return { code: 'utf16', line: 1, message: 'the file is UTF-16 text; save it as "CSV UTF-8" and import again' }
   }
   const signature = binarySignature(bytes)
-  if (signature) {
-    return { problem: { code: 'binary_file', line: 1, message: `this is a ${signature} file, not CSV text` } }
-  }
+  if (signature) return { code: 'binary_file', line: 1, message: `this is a ${signature} file, not CSV text` }
   const nul = bytes.indexOf(0)
   if (nul !== -1) {
     return {
-      problem: {
-        code: 'nul_byte',
-        line: lineAt(bytes, nul),
-        message: 'contains a NUL byte: this is not a text file (or it is UTF-16 without a byte-order mark)',
-      },
+      code: 'nul_byte',
+      line: lineAt(bytes, nul),
+      message: 'contains a NUL byte: this is not a text file (or it is UTF-16 without a byte-order mark)',
     }
   }
-  try {
-    const text = new TextDecoder('utf-8', { fatal: true, ignoreBOM: false }).decode(bytes)
-    return { text }
-  } catch {
-    const at = firstInvalidUtf8(bytes)
+  if (!isUtf8(bytes)) {
     return {
-      problem: {
-        code: 'invalid_utf8',
-        line: lineAt(bytes, at),
-        message: 'is not valid UTF-8 (perhaps saved as Windows-1252 or Latin-1); save it as "CSV UTF-8"',
-      },
+      code: 'invalid_utf8',
+      line: lineAt(bytes, firstInvalidUtf8(bytes)),
+      message: 'is not valid UTF-8 (perhaps saved as Windows-1252 or Latin-1); save it as "CSV UTF-8"',
     }
+  }
+  return null
+}
+
+/**
+ * Turns a file's bytes into text, refusing what is not UTF-8 text (see textProblem). Returns the
+ * text without a byte-order mark, or a problem.
+ */
+export function decodeText(bytes: Uint8Array): { text: string; problem?: undefined } | { text?: undefined; problem: Problem } {
+  const problem = textProblem(bytes)
+  if (problem) return { problem }
+  try {
+    return { text: new TextDecoder('utf-8', { fatal: true, ignoreBOM: false }).decode(bytes) }
+  } catch {
+    return { problem: { code: 'invalid_utf8', line: lineAt(bytes, firstInvalidUtf8(bytes)), message: 'is not valid UTF-8 (perhaps saved as Windows-1252 or Latin-1); save it as "CSV UTF-8"' } }
   }
 }
 

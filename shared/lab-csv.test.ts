@@ -108,6 +108,37 @@ describe('parseLabCsv', () => {
   })
 })
 
+describe('readLabCsv on bytes', () => {
+  it('reads a file\'s UTF-8 bytes (BOM, CRLF, letterhead lines, text other than ASCII, quoted cells) as it reads the decoded text', () => {
+    const { profile } = parseLabProfile(JSON.stringify({ skip_lines: 2, columns: { 'Lab No.': 'report_id' } }))
+    const lines = [
+      'Laboratoire « Été » — rapport',
+      '"a letterhead ""line"", with a quote',
+      'Lab No.,sample_id,sampled_on,farm,storage,form,species,basis,units,dry_matter_pct,total_n,ammonium_n,p2o5,k2o,notes',
+      'CRA-É1,S1,2025-03-01,QBF,P1,liquid,swine,as_is,lb_per_1000gal,5.1,48.2,33.0,26.4,31.0,agitée 2 h',
+      'CRA-É1,S2,2025-03-01,QBF,P1,liquid,swine,as_is,lb_per_1000gal, 5.1 ,48.2,<0.5,26.4,31.0,"crust; ""thick""\r\nbroken"',
+      'CRA-É1,S3,2025-03-01,QBF,P1,liquid,swine,as_is,lb_per_1000gal,\u00a05.10,48.2,33.0,26.4,31.0,\u00a0',
+      'CRA-É1,S1,2025-03-01,QBF,P1,liquid,swine,as_is,lb_per_1000gal,5.1,48.2,33.0,26.4,31.0,repeat',
+    ]
+    const text = lines.join('\r\n') + '\r\n'
+    const read = (input: string | Uint8Array) => {
+      const rows: unknown[] = []
+      const r = readLabCsv(input, { profile: profile!, today: '2026-01-01' }, (row) => rows.push({ ...row }))
+      return { rows, problems: r.problems }
+    }
+    const fromText = read(text)
+    expect(fromText.rows.map((r: any) => [r.line, r.reportId, r.sampleId, r.notes])).toEqual([
+      [4, 'CRA-É1', 'S1', 'agitée 2 h'],
+      [5, 'CRA-É1', 'S2', 'crust; "thick"\r\nbroken'],
+      [7, 'CRA-É1', 'S3', null],
+    ])
+    expect(fromText.problems.map((p) => `${p.line}: ${p.code}`)).toEqual(['8: duplicate_row'])
+    const bytes = Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), Buffer.from(text)])
+    expect(read(new Uint8Array(bytes))).toEqual(read('\ufeff' + text))
+    expect(read(bytes.subarray(3))).toEqual(fromText)
+  })
+})
+
 describe('lab units and basis', () => {
   it.each([
     ['lb/1000 gal', 'lb_per_1000gal'],

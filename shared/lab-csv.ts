@@ -1,7 +1,7 @@
 import type { AnalysisBasis, AnalysisUnits, ManureForm } from './analysis.ts'
 import { isCanonicalDecimalAt, parseDateCell, parseNumberCell, readPlainDecimal, type DecimalMark } from './csv-cells.ts'
 import { parseCsvTable, type ColumnSpec } from './csv-table.ts'
-import { CsvCursor, hashSpans, RecordIndex } from './csv.ts'
+import { CsvCursor, hashSpans, leadingMarks, RecordIndex, spanText, textBytes, type TextBytes } from './csv.ts'
 import type { Problem } from './errors.ts'
 import type { LabProfile } from './lab-profile.ts'
 import { canonicalDecimal, storedColumns } from './lab-reported.ts'
@@ -187,53 +187,48 @@ function todayIso(): string {
   return new Date().toISOString().slice(0, 10)
 }
 
-/** Blanks the first `n` lines (keeping their line ends) so that line numbers stay those of the file. */
-function blankLines(text: string, n: number): string {
-  if (n <= 0) return text
+/** Where the text after the first `n` lines starts (LF, CRLF or CR ends), and how many lines there were to skip. */
+function afterLines(bytes: Uint8Array, n: number): { offset: number; lines: number } {
   let i = 0
-  let kept = ''
   let seen = 0
-  while (i < text.length && seen < n) {
-    const c = text.charCodeAt(i)
+  while (i < bytes.length && seen < n) {
+    const c = bytes[i]
     if (c === 13) {
-      kept += '\n'
       seen++
-      if (text.charCodeAt(i + 1) === 10) i++
-    } else if (c === 10) {
-      kept += '\n'
-      seen++
-    }
+      if (bytes[i + 1] === 10) i++
+    } else if (c === 10) seen++
     i++
   }
-  return kept + text.slice(i)
+  return { offset: i, lines: seen }
 }
 
 const plainNumber = /^\d+(\.\d+)?$/
 
-/** The header and the rows after it in about this many characters are read by parseCsvTable (which detects the decimal mark from them). */
-const headChars = 256 * 1024
+/** The header and the rows after it in about this many bytes are read by parseCsvTable (which detects the decimal mark from them). */
+const headBytes = 256 * 1024
 
 /**
- * Where the first run of whole records ends: just after the first line feed at or after `headChars`
- * that is outside quotes (an even number of quotes before it); the text's length when there is none.
+ * Where the first run of whole records from `from` ends: just after the first line feed at or
+ * after `from + headBytes` that is outside quotes (an even number of quotes before it); the end of
+ * the bytes when there is none.
  */
-function headEnd(text: string): number {
+function headEnd(bytes: Uint8Array, from: number): number {
   let quotes = 0
-  let nextQuote = text.indexOf('"')
-  let nl = text.indexOf('\n', Math.min(headChars, text.length))
+  let nextQuote = bytes.indexOf(34, from)
+  let nl = bytes.indexOf(10, Math.min(from + headBytes, bytes.length))
   for (;;) {
-    if (nl === -1) return text.length
+    if (nl === -1) return bytes.length
     while (nextQuote !== -1 && nextQuote < nl) {
       quotes++
-      nextQuote = text.indexOf('"', nextQuote + 1)
+      nextQuote = bytes.indexOf(34, nextQuote + 1)
     }
     if (quotes % 2 === 0) return nl + 1
-    nl = text.indexOf('\n', nl + 1)
+    nl = bytes.indexOf(10, nl + 1)
   }
 }
 
-function hasPoint(text: string, from: number, to: number): boolean {
-  for (let i = from; i < to; i++) if (text.charCodeAt(i) === 46) return true
+function hasPoint(bytes: Uint8Array, from: number, to: number): boolean {
+  for (let i = from; i < to; i++) if (bytes[i] === 46) return true
   return false
 }
 
@@ -264,20 +259,26 @@ export interface LabCsvRead {
 /**
  * The streaming form of parseLabCsv, for big files: calls `onRow` once per good row with ONE row
  * object that is reused for every call (copy what you keep; `warnings` is a fresh array or null).
- * Rows with errors are reported in `problems` and not passed on. Reads the text in runs of whole
- * records so that memory stays flat. Pure apart from the callback; never throws.
+ * Rows with errors are reported in `problems` and not passed on. Reads the text or, for a big file,
+ * its UTF-8 bytes as they are (checked as UTF-8 first, see shared/decode-text.ts: the bytes never
+ * become one string), making strings only of the cells a row keeps. Pure apart from the callback;
+ * never throws.
  */
-export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: LabRow) => void): LabCsvRead {
+export function readLabCsv(text: string | Uint8Array, options: LabCsvOptions, onRow: (row: LabRow) => void): LabCsvRead {
   const profile = options.profile ?? null
   const today = options.today ?? todayIso()
   const rename: Record<string, string> = {}
   if (profile) for (const [from, to] of Object.entries(profile.columns)) rename[from] = to
-  const source = blankLines(text, profile?.skipLines ?? 0)
+  const source: TextBytes = textBytes(text)
+  // a profile's lines before the header are left out, their line ends kept for the line numbers
+  const skipped = afterLines(source, profile?.skipLines ?? 0)
+  const bom = skipped.offset === 0 ? leadingMarks(source) : 0
 
   // the first run of records (header and the rows after it) goes through parseCsvTable, which maps
   // the header and detects the decimal mark; then every row is read in one pass (CsvCursor)
-  const firstRun = headEnd(source)
-  const table = parseCsvTable(source.slice(0, firstRun), { columns: labColumns, ignore: ['organic_n'] }, {
+  const firstRun = headEnd(source, skipped.offset)
+  const head = '\n'.repeat(skipped.lines) + spanText(source, skipped.offset + bom, firstRun)
+  const table = parseCsvTable(head, { columns: labColumns, ignore: ['organic_n'] }, {
     ...(profile?.delimiter ? { delimiter: profile.delimiter } : {}),
     ...(profile?.decimal ? { decimal: profile.decimal } : {}),
     rename,
@@ -364,12 +365,12 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
   const defaultLab = profile?.defaults.lab ?? null
 
   // rows by report and sample, with the line they first appear on
-  const seenRecords = new RecordIndex((source.length / Math.max(1, firstRun)) * (table.rows.length + 1) * 1.1)
+  const seenRecords = new RecordIndex((source.length / Math.max(1, firstRun - skipped.offset)) * (table.rows.length + 1) * 1.1)
   const again = new CsvCursor(source, table.delimiter)
   let rs = 0, re = 0, ss = 0, se = 0 // the current row's report and sample codes
   const sameSpan = (s1: number, e1: number, s2: number, e2: number): boolean => {
     if (e1 - s1 !== e2 - s2) return false
-    for (let i = 0; i < e1 - s1; i++) if (source.charCodeAt(s1 + i) !== source.charCodeAt(s2 + i)) return false
+    for (let i = 0; i < e1 - s1; i++) if (source[s1 + i] !== source[s2 + i]) return false
     return true
   }
   const sameCodes = (offset: number): boolean => {
@@ -411,7 +412,7 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
     let s = '{'
     for (let r = 0; r < repCount; r++) {
       if (r > 0) s += ','
-      s += repEntries[r] ?? '"' + repColumns[r]! + '":"' + source.slice(repStarts[r]!, repEnds[r]!) + '"'
+      s += repEntries[r] ?? '"' + repColumns[r]! + '":"' + source.latin1Slice(repStarts[r]!, repEnds[r]!) + '"'
     }
     reportedText = s + '}'
     reportedRow = rowCount
@@ -438,6 +439,7 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
   let bad = false
   let warnings: string[] | null = null
   const cur = new CsvCursor(source, table.delimiter)
+  if (skipped.offset > 0) cur.seek(skipped.offset, skipped.lines + 1)
 
   const err = (column: string, code: string, message: string) => {
     problems.push({ code, line, column, message })
@@ -475,15 +477,15 @@ export function readLabCsv(text: string, options: LabCsvOptions, onRow: (row: La
       const s = cur.starts[k]!
       const e = cur.ends[k]!
       if (s >= 0 && s < e) {
-        const a = source.charCodeAt(s)
-        const b = source.charCodeAt(e - 1)
+        const a = source[s]!
+        const b = source[e - 1]!
         // in a decimal-comma file "6.240" is a thousands separator (or ambiguous), never 6.24
         if (a >= 48 && a <= 57 && b >= 48 && b <= 57 && (decimal === '.' || !hasPoint(source, s, e))) {
           const value = readPlainDecimal(source, s, e)
           if (value !== -1) {
             addEntry(column, s, e, null)
             if (!storedColumns.has(column) || !isCanonicalDecimalAt(source, s, e)) {
-              const entry = '"' + column + '":"' + source.slice(s, e) + '"'
+              const entry = '"' + column + '":"' + source.latin1Slice(s, e) + '"' // digits and a point
               reportedOdd += reportedOdd === '' ? entry : ',' + entry
             }
             return value

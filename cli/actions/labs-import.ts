@@ -12,7 +12,7 @@ import {
 import { LabRowWriteError } from '../../shared/db/lab-write.ts'
 import { spareLabWriter, startLabFileWriter, type LabFileWriter, type SpareLabWriter } from '../../shared/db/lab-writer.ts'
 import { appErrorFromSqlite } from '../../shared/db/sqlite-errors.ts'
-import { decodeText } from '../../shared/decode-text.ts'
+import { textProblem } from '../../shared/decode-text.ts'
 import { AppError, formatProblems, isAppError, type ErrorCode, type Problem } from '../../shared/errors.ts'
 import { readLabCsv, type LabRow } from '../../shared/lab-csv.ts'
 import type { LabProfile } from '../../shared/lab-profile.ts'
@@ -152,14 +152,14 @@ interface BatchContext {
 
 async function importOne(sqlite: SQLite.Database, path: string, batch: BatchContext, options: LabImportOptions, spare: { writer: SpareLabWriter | null }): Promise<LabFileSummary> {
   let input: { name: string; bytes: Buffer; sha256: string } | undefined
-  let decoded: ReturnType<typeof decodeText> | undefined
+  let problem: Problem | null | undefined
   try {
     if (spare.writer && path !== '-') {
-      // a spare writer thread hashes the bytes (in shared memory) while this thread decodes them
+      // a spare writer thread hashes the bytes (in shared memory) while this thread checks them
       const { name, bytes } = await readInputBytes(path, { shared: true })
       const hashing = spare.writer.sha256(bytes as Buffer & Uint8Array<SharedArrayBuffer>)
-      hashing.catch(() => undefined) // awaited below, after the decoding
-      decoded = decodeText(bytes)
+      hashing.catch(() => undefined) // awaited below, after the check
+      problem = textProblem(bytes)
       input = { name, bytes, sha256: await hashing }
     } else input = await readInput(path)
   } catch (error) {
@@ -194,16 +194,17 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
     return summary
   }
 
-  // the writer (a worker thread with its own connection) starts while the text is decoded
+  // the writer (a worker thread with its own connection) starts while the bytes are checked
   const thread = spare.writer
   spare.writer = null
   const starting = startLabFileWriter(sqlite, { fileName: name, sha256, message: options.profile?.name ? `profile: ${options.profile.name}` : null, bytes: input.bytes.length }, thread)
   starting.catch(() => undefined) // awaited below; an early failure must not go unhandled meanwhile
-  decoded ??= decodeText(input.bytes)
-  input = undefined // the bytes are not needed any more: let a big file's buffer go before the rows are read
-  if (decoded.problem) {
+  if (problem === undefined) problem = textProblem(input.bytes)
+  // the rows are read from the bytes themselves, never decoded into one string (shared/lab-csv.ts)
+  const bytes = input.bytes
+  if (problem) {
     await starting.then((w) => w.finish(null)).catch(() => undefined)
-    return refuse([decoded.problem], 'not a UTF-8 text file')
+    return refuse([problem], 'not a UTF-8 text file')
   }
 
   // One pass: each row is parsed, resolved, checked and sorted into new / unchanged / replacing,
@@ -232,7 +233,7 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   let written: Awaited<ReturnType<LabFileWriter['finish']>> = null
   let finished = false
   try {
-    read = readLabCsv(decoded.text, { file: name, profile: options.profile ?? null, ...(options.today ? { today: options.today } : {}) }, (row) => {
+    read = readLabCsv(bytes, { file: name, profile: options.profile ?? null, ...(options.today ? { today: options.today } : {}) }, (row) => {
       if (!checkLabRow(row, context, checkProblems, values)) return
       if (checkProblems.length > 0 || writer.failed) return // refused anyway: go on checking, stop writing
       const existing = stored(row.reportId).get(row.sampleId)
