@@ -28,7 +28,7 @@ const F_QUALIFIERS = 1, F_NOTES = 2, F_WARNINGS = 4
 /** Values bound per result row (the import run is written into the statement). */
 const rowParameters = 23
 /** Rows per insert statement (SQLite allows 32,766 values in one statement). */
-export const chunkRows = 64
+export const chunkRows = 128
 
 /** Rows per batch: big enough that a batch costs little to hand over, small enough to keep memory flat. */
 export const batchRows = 4096
@@ -207,7 +207,7 @@ export interface LabFileWrite {
 export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, options: { mayRebuildIndexes?: boolean } = {}): LabFileWrite {
   const insertRun = sqlite.prepare(`insert into import_runs (kind, file_name, sha256, outcome, message) values ('labs', ?, ?, 'imported', ?)`)
   const finishRun = sqlite.prepare(`update import_runs set rows = ?, rows_new = ?, rows_unchanged = ?, warnings = ?, outcome = ? where id = ?`)
-  const insertReport = sqlite.prepare(`insert into lab_reports (lab, report_number, source_file, source_sha256, import_run_id) values (?, ?, ?, ?, ?)`)
+  const insertReport = sqlite.prepare(`insert into lab_reports (lab, report_number, import_run_id) values (?, ?, ?)`)
   const supersede = sqlite.prepare(`update lab_results set superseded_by = ? where id = ?`)
   const storageExists = sqlite.prepare(`select 1 from storages where id = ?`).pluck()
   const eventExists = sqlite.prepare(`select 1 from sampling_events where id = ?`).pluck()
@@ -312,7 +312,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
           reportId = reports.get(reportWord)
           if (reportId === undefined) {
             const lab = n[o + N_LAB]!
-            reportId = Number(insertReport.run(lab !== lab ? null : words[lab], words[reportWord]!, meta.fileName, meta.sha256, runId).lastInsertRowid)
+            reportId = Number(insertReport.run(lab !== lab ? null : words[lab], words[reportWord]!, runId).lastInsertRowid)
             reports.set(reportWord, reportId)
           }
         } catch (error) {

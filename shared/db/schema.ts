@@ -96,8 +96,6 @@ export interface Database {
     lab: string | null
     report_number: string
     received_on: string | null
-    source_file: string | null
-    source_sha256: string | null
     import_run_id: number | null
     created_at: Generated<string>
   }

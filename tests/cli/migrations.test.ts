@@ -91,6 +91,10 @@ describe('migrations', () => {
       const columns = s.prepare('select name from pragma_table_info(?)').pluck().all('lab_results')
       expect(columns).not.toContain('report_number')
       expect(columns).not.toContain('created_at')
+      // a report's file is its import run's
+      const reportColumns = s.prepare('select name from pragma_table_info(?)').pluck().all('lab_reports')
+      expect(reportColumns).not.toContain('source_file')
+      expect(reportColumns).not.toContain('source_sha256')
       expect(
         s.prepare(`select p.report_number, i.created_at, r.sample_code, r.total_n from lab_results r
           join lab_reports p on p.id = r.lab_report_id join import_runs i on i.id = r.import_run_id`).all(),
