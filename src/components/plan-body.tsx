@@ -365,7 +365,7 @@ function StorageBudget({ g }: { g: StorageGroup }) {
         {[label(g.kind), g.species, g.form].filter((x) => x && x !== '—').join(' · ')}
         {g.stored?.analysis_source === 'book'
           ? ' · no lab result yet: book values stand in'
-          : num(g.stored?.samples) !== null && ` · ${g.stored!.samples} samples in the latest round`}
+          : num(g.stored?.samples) !== null && ` · ${g.stored!.samples} ${num(g.stored?.samples) === 1 ? 'sample' : 'samples'} in the latest round`}
       </p>
       <div className="mt-3 space-y-3">
         <BudgetBar used={planned} available={num(g.stored?.in_storage)} usedLabel="planned" availableLabel="in storage" unit={g.amountUnit} overMessage="More is planned than there is in storage." />
@@ -418,7 +418,8 @@ function Totals({ plan }: { plan: PlanView }) {
   if (num(planned.ton)) items.push(['Solid manure', `${fmt(planned.ton)} ton`])
   // the three figures and their units are too long for half a phone's width: this one takes a whole row there
   const wide = 'Fertilizer still needed, whole farm'
-  if (Object.keys(sup).length) items.push([wide, `${nutrients.map((k) => fmt(sup[k])).join('–')} lb N–P₂O₅–K₂O`])
+  // each figure named: three whole-farm totals joined by dashes would read as a range
+  if (Object.keys(sup).length) items.push([wide, `N ${fmt(sup.n)} · P₂O₅ ${fmt(sup.p2o5)} · K₂O ${fmt(sup.k2o)} lb`])
   return (
     <dl className="grid grid-cols-2 gap-x-6 gap-y-2 rounded-md border border-line bg-surface p-4 text-sm sm:grid-cols-4">
       {items.map(([k, v]) => (
