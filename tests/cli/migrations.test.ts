@@ -102,6 +102,10 @@ describe('migrations', () => {
       // a result is found by its report and sample through the index on (lab_report_id, sample_code)
       const plan = s.prepare(`explain query plan select id from lab_results where lab_report_id = 1 and sample_code = 'S-1'`).all() as { detail: string }[]
       expect(plan.map((p) => p.detail).join(' ')).toMatch(/lab_results_report_sample_idx/)
+      // a storage's results are found through the index by storage
+      const byStorage = s.prepare(`explain query plan select id from lab_results where storage_id = 1 and superseded_by is null`).all() as { detail: string }[]
+      expect(byStorage.map((p) => p.detail).join(' ')).toMatch(/lab_results_storage_idx/)
+      expect(s.prepare(`select sql from sqlite_master where name = 'lab_results_storage_idx'`).pluck().get()).toMatch(/\("?storage_id"?\)/)
       expect(s.pragma('integrity_check', { simple: true })).toBe('ok')
     } finally {
       await first.close()
