@@ -64,8 +64,8 @@ export function textBytes(input: string | Uint8Array): TextBytes {
 }
 
 /**
- * Bytes of the byte-order marks at the start of `bytes` (EF BB BF, some exports write two): a
- * reader of the bytes skips them as a decoder and the reader of the text each skip one.
+ * How many bytes of byte-order marks (EF BB BF) `bytes` starts with: all of them are skipped, as
+ * some exports write two (a decoder and a reader of the decoded text each skip one).
  */
 export function leadingMarks(bytes: Uint8Array): number {
   let i = 0

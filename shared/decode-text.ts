@@ -21,14 +21,15 @@ export function textProblem(bytes: Uint8Array): Problem | null {
       message: 'contains a NUL byte: this is not a text file (or it is UTF-16 without a byte-order mark)',
     }
   }
-  if (!isUtf8(bytes)) {
-    return {
-      code: 'invalid_utf8',
-      line: lineAt(bytes, firstInvalidUtf8(bytes)),
-      message: 'is not valid UTF-8 (perhaps saved as Windows-1252 or Latin-1); save it as "CSV UTF-8"',
-    }
+  return isUtf8(bytes) ? null : invalidUtf8(bytes)
+}
+
+function invalidUtf8(bytes: Uint8Array): Problem {
+  return {
+    code: 'invalid_utf8',
+    line: lineAt(bytes, firstInvalidUtf8(bytes)),
+    message: 'is not valid UTF-8 (perhaps saved as Windows-1252 or Latin-1); save it as "CSV UTF-8"',
   }
-  return null
 }
 
 /**
@@ -41,7 +42,7 @@ export function decodeText(bytes: Uint8Array): { text: string; problem?: undefin
   try {
     return { text: new TextDecoder('utf-8', { fatal: true, ignoreBOM: false }).decode(bytes) }
   } catch {
-    return { problem: { code: 'invalid_utf8', line: lineAt(bytes, firstInvalidUtf8(bytes)), message: 'is not valid UTF-8 (perhaps saved as Windows-1252 or Latin-1); save it as "CSV UTF-8"' } }
+    return { problem: invalidUtf8(bytes) } // a decoder stricter than isUtf8 would be a surprise, not a crash
   }
 }
 

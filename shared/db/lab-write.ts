@@ -25,8 +25,9 @@ const N_BASIS = 17, N_UNITS = 18, N_PER_UNIT = 19, N_LAB = 20
 /** Which of a row's optional strings follow its sample code and reported cells (in this order). */
 const F_QUALIFIERS = 1, F_NOTES = 2, F_WARNINGS = 4
 
-/** Values bound per result row (the import run is written into the statement). */
+/** Values bound per result row (the import run is written into the statement); the row's line is value P_LINE. */
 const rowParameters = 23
+const P_LINE = 5
 /** Rows per insert statement (SQLite allows 32,766 values in one statement). */
 export const chunkRows = 128
 
@@ -180,6 +181,11 @@ export class LabRowWriteError extends Error {
   ) {
     super(message)
   }
+
+  /** The failure of SQLite's statement for the row on `line`. */
+  static of(line: number, error: unknown): LabRowWriteError {
+    return new LabRowWriteError(line, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+  }
 }
 
 const num = (x: number) => (x !== x ? null : x)
@@ -270,7 +276,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
         return
       } catch (error) {
         // SQLite undid the failed statement: nothing of the chunk is in; find the row
-        if (!sqlite.inTransaction) throw new LabRowWriteError(pending[5] as number, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+        if (!sqlite.inTransaction) throw LabRowWriteError.of(pending[P_LINE] as number, error)
       }
     }
     for (let r = 0; r < rows; r++) {
@@ -279,7 +285,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
         insertOne.run(...pending.slice(o, o + rowParameters))
         count++
       } catch (error) {
-        throw new LabRowWriteError(pending[o + 5] as number, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+        throw LabRowWriteError.of(pending[o + P_LINE] as number, error)
       }
     }
   }
@@ -316,7 +322,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
             reports.set(reportWord, reportId)
           }
         } catch (error) {
-          throw new LabRowWriteError(line, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+          throw LabRowWriteError.of(line, error)
         }
         const storageId = n[o + N_STORAGE]!
         if (storageId !== lastStorage) {
@@ -332,7 +338,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
         p[v + 2] = eventId
         p[v + 3] = s[k++]
         p[v + 4] = words[n[o + N_DATE]!]
-        p[v + 5] = line
+        p[v + P_LINE] = line
         p[v + 6] = s[k++]
         p[v + 7] = flags & F_QUALIFIERS ? s[k++] : null
         p[v + 8] = num(n[o + N_DM]!)
@@ -364,7 +370,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
           supersede.run(lastInsertRowid, supersedes)
           replaced++
         } catch (error) {
-          throw new LabRowWriteError(line, (error as { code?: string })?.code, (error as Error)?.message ?? String(error))
+          throw LabRowWriteError.of(line, error)
         }
       }
       if (k !== s.length) throw new Error(`a batch of ${rows} rows came with ${s.length} strings, ${k} of them read`)
