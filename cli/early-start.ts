@@ -24,6 +24,8 @@ interface EarlyRead {
 
 let earlyRead: EarlyRead | null = null
 let earlyWriter: LabWriterThread | null = null
+/** the bytes of the early read, once handed to the early writer thread to hash and check */
+let checkedBytes: Buffer | null = null
 
 /** The first file of a `labs import` command line, or null for any other command. */
 export function labImportFirstFile(args: readonly string[]): string | null {
@@ -57,7 +59,18 @@ export function startEarly(args: readonly string[]): void {
     }
     if (size < earlyFromBytes) return
     earlyRead = { path, done: readWhole(path) }
-    if (labWriteWorkerBuilt()) earlyWriter = newLabWriterThread()
+    if (labWriteWorkerBuilt()) {
+      const writer = (earlyWriter = newLabWriterThread())
+      // the thread hashes the bytes and checks that they are UTF-8 text once they are read, while
+      // this one loads the program: the first pass over fresh memory is slow here, and the command
+      // asks for the answers (SpareLabWriter.check) when it has the bytes
+      void earlyRead.done.then((got) => {
+        if (!got) return
+        const bytes = got.bytes
+        writer.worker.postMessage({ type: 'precheck', buffer: bytes.buffer as SharedArrayBuffer, offset: bytes.byteOffset, length: bytes.length })
+        checkedBytes = bytes
+      })
+    }
   } catch {
     // a guess that failed: the command does it all itself
   }
@@ -103,6 +116,14 @@ export async function takeEarlyRead(path: string): Promise<Buffer | null> {
   }
   const same = now.dev === got.stat.dev && now.ino === got.stat.ino && now.size === got.stat.size && now.mtimeMs === got.stat.mtimeMs
   return same ? got.bytes : null
+}
+
+/**
+ * Whether these are the bytes of the early read, handed to the early writer thread to hash and
+ * check (ask it with `SpareLabWriter.check(bytes, true)`; a thread that did not get them does both then).
+ */
+export function checkedEarly(bytes: Uint8Array): boolean {
+  return checkedBytes !== null && bytes === checkedBytes
 }
 
 /** The writer thread started early, if any. Taken once; the taker ends it when it does not use it. */

@@ -1,7 +1,8 @@
 import type SQLite from 'better-sqlite3'
 import { createHash } from 'node:crypto'
 import { parentPort, workerData } from 'node:worker_threads'
-import { isAppError } from '../errors.ts'
+import { textProblem } from '../decode-text.ts'
+import { isAppError, type Problem } from '../errors.ts'
 import { openWriterSqlite } from './open-sqlite.ts'
 import { beginLabFileWrite, LabRowWriteError, type LabFileMeta, type LabFileWrite } from './lab-write.ts'
 import type { WorkerReply, WorkerRequest, WriteFailure } from './lab-writer.ts'
@@ -28,6 +29,10 @@ let write: LabFileWrite | undefined
 let failure: WriteFailure | null = null
 /** the numbers of the batches, in shared memory that the parser fills again once a batch is done */
 let ring: Float64Array[] = []
+/** the answers for the bytes of a precheck: their hash and why they are not text, or null */
+let prechecked: { sha256: string; problem: Problem | null } | null = null
+
+const sha256Of = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex')
 
 const fail = (error: unknown) => {
   failure ??= failureOf(error)
@@ -47,7 +52,19 @@ function onMessage(m: WorkerRequest) {
     return begin(m.file, m.meta)
   }
   if (m.type === 'close') return done()
-  if (m.type === 'hash') return reply({ type: 'hashed', sha256: createHash('sha256').update(new Uint8Array(m.buffer, m.offset, m.length)).digest('hex') })
+  if (m.type === 'precheck') {
+    const bytes = new Uint8Array(m.buffer, m.offset, m.length)
+    prechecked = { sha256: sha256Of(bytes), problem: textProblem(bytes) }
+    return
+  }
+  if (m.type === 'hash') {
+    const bytes = new Uint8Array(m.buffer, m.offset, m.length)
+    if (!m.checked) return reply({ type: 'hashed', sha256: sha256Of(bytes) })
+    // bytes given in a precheck (the asker knows they are the same), or checked now
+    const answer = prechecked ?? { sha256: sha256Of(bytes), problem: textProblem(bytes) }
+    prechecked = null
+    return reply({ type: 'hashed', ...answer })
+  }
   if (m.type === 'rows') {
     if (!failure && write) {
       try {

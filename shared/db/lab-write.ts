@@ -15,18 +15,18 @@ import type { LabResultValues } from '../lab-results.ts'
 
 /**
  * The numbers of one row, in this order (NaN: null). Values that repeat from row to row (report
- * number, date, form, species, basis, units, lab) travel as indexes into the file's word list,
- * which grows by the batch's new words; the rest of the row's strings travel as strings.
+ * number, date, lab, and the kind: form, species, basis, units and per-unit together) travel as
+ * indexes into the file's word list, which grows by the batch's new words; the rest of the row's
+ * strings travel as strings.
  */
-export const rowNumbers = 21
+export const rowNumbers = 17
 const N_STORAGE = 0, N_EVENT = 1, N_LINE = 2, N_DM = 3, N_TOTAL_N = 4, N_NH4 = 5, N_ORG_N = 6, N_P2O5 = 7, N_K2O = 8
-const N_SULFUR = 9, N_PH = 10, N_SUPERSEDES = 11, N_FLAGS = 12, N_REPORT = 13, N_DATE = 14, N_FORM = 15, N_SPECIES = 16
-const N_BASIS = 17, N_UNITS = 18, N_PER_UNIT = 19, N_LAB = 20
+const N_SULFUR = 9, N_PH = 10, N_SUPERSEDES = 11, N_FLAGS = 12, N_REPORT = 13, N_DATE = 14, N_KIND = 15, N_LAB = 16
 /** Which of a row's optional strings follow its sample code and reported cells (in this order). */
 const F_QUALIFIERS = 1, F_NOTES = 2, F_WARNINGS = 4
 
 /** Values bound per result row (the import run is written into the statement); the row's line is value P_LINE. */
-const rowParameters = 23
+const rowParameters = 19
 const P_LINE = 5
 /** Rows per insert statement (SQLite allows 32,766 values in one statement). */
 export const chunkRows = 128
@@ -36,6 +36,9 @@ export const batchRows = 4096
 /** Rows of a file's first batch for a writer thread: small, so that the writer starts soon after the reading. */
 export const firstBatchRows = 256
 
+/** How many of a file's kinds LabWordList.kindId compares value by value. */
+const kindsCompared = 16
+
 /** The words (repeated strings) of one file, numbered in the order they first appear. */
 export class LabWordList {
   private readonly ids = new Map<string, number>()
@@ -44,6 +47,9 @@ export class LabWordList {
   /** per slot (a column of the rows), the last word asked for and its number: rows repeat their neighbours' words */
   private readonly lastWord: (string | null)[] = []
   private readonly lastId: number[] = []
+  /** the kinds asked for so far, their five values one after the other, and their numbers */
+  private readonly kindValues: string[] = []
+  private readonly kindIds: number[] = []
 
   /** The number of a word in one slot of the rows: the same as `id`, without hashing a word its slot just had. */
   idIn(slot: number, word: string): number {
@@ -51,6 +57,25 @@ export class LabWordList {
     const id = this.id(word)
     this.lastWord[slot] = word
     this.lastId[slot] = id
+    return id
+  }
+
+  /**
+   * The number of a result's kind (what lab_result_kinds holds), as the word of its five values
+   * (JSON: any text may be in them). A file has a handful of kinds, and neighbouring rows (a
+   * report's storages) alternate between a few: the first kinds are compared value by value
+   * (mostly the same string objects), without making their word again.
+   */
+  kindId(form: string, species: string, basis: string, units: string, perUnit: string): number {
+    const k = this.kindValues
+    for (let i = 0; i < k.length; i += 5) {
+      if (k[i] === form && k[i + 1] === species && k[i + 2] === basis && k[i + 3] === units && k[i + 4] === perUnit) return this.kindIds[i / 5]!
+    }
+    const id = this.id(JSON.stringify([form, species, basis, units, perUnit]))
+    if (k.length < 5 * kindsCompared) {
+      k.push(form, species, basis, units, perUnit)
+      this.kindIds.push(id)
+    }
     return id
   }
 
@@ -128,12 +153,8 @@ export class LabRowBatch {
     n[o + N_FLAGS] = flags
     n[o + N_REPORT] = w.idIn(0, row.reportId)
     n[o + N_DATE] = w.idIn(1, row.sampledOn)
-    n[o + N_FORM] = w.idIn(2, v.form)
-    n[o + N_SPECIES] = w.idIn(3, v.species)
-    n[o + N_BASIS] = w.idIn(4, row.basis)
-    n[o + N_UNITS] = w.idIn(5, row.units)
-    n[o + N_PER_UNIT] = w.idIn(6, v.perUnit)
-    n[o + N_LAB] = row.lab === null ? NaN : w.idIn(7, row.lab)
+    n[o + N_KIND] = w.kindId(v.form, v.species, row.basis, row.units, v.perUnit)
+    n[o + N_LAB] = row.lab === null ? NaN : w.idIn(2, row.lab)
     this.count++
   }
 }
@@ -216,6 +237,8 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
   const insertReport = sqlite.prepare(`insert into lab_reports (lab, report_number, import_run_id) values (?, ?, ?)`)
   const supersede = sqlite.prepare(`update lab_results set superseded_by = ? where id = ?`)
   const storageExists = sqlite.prepare(`select 1 from storages where id = ?`).pluck()
+  const findKind = sqlite.prepare(`select id from lab_result_kinds where form = ? and species = ? and basis = ? and units = ? and per_unit = ?`).pluck()
+  const insertKind = sqlite.prepare(`insert into lab_result_kinds (form, species, basis, units, per_unit) values (?, ?, ?, ?, ?)`)
   const eventExists = sqlite.prepare(`select 1 from sampling_events where id = ?`).pluck()
 
   const foreignKeys = sqlite.pragma('foreign_keys', { simple: true }) as number
@@ -256,11 +279,14 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
   // Rows go in `chunkRows` at a time, with one multi-row insert: better-sqlite3's cost per call
   // (binding, stepping, the result object) is as large as SQLite's own work for a row
   // (docs/performance.md). Rows that supersede a stored result go in alone (their new id is needed).
+  // `or fail`: a statement that fails keeps the rows it inserted before the failing one, so SQLite
+  // keeps no statement journal to undo it (for a 200,000-row file some 190 MB of page copies in a
+  // temporary file); any failure refuses the whole file and rolls the transaction back anyway.
   const columns = `lab_report_id, storage_id, sampling_event_id, sample_code, sampled_on, line, reported, qualifiers,
-    dry_matter_pct, total_n, ammonium_n, organic_n, p2o5, k2o, sulfur, ph, notes, warnings, form, species, basis, units, per_unit, import_run_id`
+    dry_matter_pct, total_n, ammonium_n, organic_n, p2o5, k2o, sulfur, ph, notes, warnings, kind_id, import_run_id`
   const rowValues = `(${'?, '.repeat(rowParameters)}${runId})`
-  const insertOne = sqlite.prepare(`insert into lab_results (${columns}) values ${rowValues}`)
-  const insertChunk = sqlite.prepare(`insert into lab_results (${columns}) values ${Array(chunkRows).fill(rowValues).join(', ')}`)
+  const insertOne = sqlite.prepare(`insert or fail into lab_results (${columns}) values ${rowValues}`)
+  const insertChunk = sqlite.prepare(`insert or fail into lab_results (${columns}) values ${Array(chunkRows).fill(rowValues).join(', ')}`)
   /** the values of the rows not inserted yet, rowParameters per row */
   const pending: unknown[] = new Array(chunkRows * rowParameters)
   let pendingRows = 0
@@ -269,16 +295,20 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
     if (pendingRows === 0) return
     const rows = pendingRows
     pendingRows = 0
+    let chunkError: unknown = null
     if (rows === chunkRows) {
       try {
         insertChunk.run(...pending)
         count += rows
         return
       } catch (error) {
-        // SQLite undid the failed statement: nothing of the chunk is in; find the row
+        // SQLite rolls the whole transaction back itself on some errors (a full disk)
         if (!sqlite.inTransaction) throw LabRowWriteError.of(pending[P_LINE] as number, error)
+        chunkError = error
       }
     }
+    // rows one by one, to name the row that fails: after a failed chunk, the rows that statement
+    // kept go in twice, and this write never commits (the error below is thrown in every case)
     for (let r = 0; r < rows; r++) {
       const o = r * rowParameters
       try {
@@ -288,9 +318,26 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
         throw LabRowWriteError.of(pending[o + P_LINE] as number, error)
       }
     }
+    if (chunkError !== null) throw LabRowWriteError.of(pending[P_LINE] as number, chunkError)
   }
   const words: string[] = []
   const reports = new Map<number, number>() // word of the report number → lab report id
+  const kinds = new Map<number, number>() // word of a kind → its id in lab_result_kinds
+  /** The id of a kind, found or added (in this transaction: a file rolled back leaves none). */
+  let lastKindWord = -1
+  let lastKindId = -1
+  const kindOf = (word: number): number => {
+    if (word === lastKindWord) return lastKindId
+    let id = kinds.get(word)
+    if (id === undefined) {
+      const values = JSON.parse(words[word]!) as [string, string, string, string, string]
+      id = (findKind.get(...values) as number | undefined) ?? Number(insertKind.run(...values).lastInsertRowid)
+      kinds.set(word, id)
+    }
+    lastKindWord = word
+    lastKindId = id
+    return id
+  }
   const storages = new Set<number>()
   const events = new Set<number>()
   let lastStorage = -1
@@ -313,7 +360,9 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
         const flags = n[o + N_FLAGS]!
         const line = n[o + N_LINE]!
         let reportId: number | undefined
+        let kindId: number
         try {
+          kindId = kindOf(n[o + N_KIND]!)
           const reportWord = n[o + N_REPORT]!
           reportId = reports.get(reportWord)
           if (reportId === undefined) {
@@ -351,11 +400,7 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
         p[v + 15] = num(n[o + N_PH]!)
         p[v + 16] = flags & F_NOTES ? s[k++] : null
         p[v + 17] = flags & F_WARNINGS ? s[k++] : null
-        p[v + 18] = words[n[o + N_FORM]!]
-        p[v + 19] = words[n[o + N_SPECIES]!]
-        p[v + 20] = words[n[o + N_BASIS]!]
-        p[v + 21] = words[n[o + N_UNITS]!]
-        p[v + 22] = words[n[o + N_PER_UNIT]!]
+        p[v + 18] = kindId
         const supersedes = num(n[o + N_SUPERSEDES]!)
         if (supersedes === null) {
           if (++pendingRows === chunkRows) flush()

@@ -108,8 +108,8 @@ export function labResultSignature(r: {
  */
 export function currentLabResultsReader(sqlite: SQLite.Database): (reportNumber: string) => Map<string, StoredLabResult> {
   const query = sqlite.prepare(
-    `select r.id, r.sample_code, r.storage_id, r.sampled_on, r.basis, r.units, r.dry_matter_pct, r.total_n, r.ammonium_n, r.p2o5, r.k2o, r.sulfur, r.ph
-     from lab_reports p join lab_results r on r.lab_report_id = p.id
+    `select r.id, r.sample_code, r.storage_id, r.sampled_on, k.basis, k.units, r.dry_matter_pct, r.total_n, r.ammonium_n, r.p2o5, r.k2o, r.sulfur, r.ph
+     from lab_reports p join lab_results r on r.lab_report_id = p.id join lab_result_kinds k on k.id = r.kind_id
      where p.report_number = ? and r.superseded_by is null`,
   )
   const cache = new Map<string, Map<string, StoredLabResult>>()

@@ -8,4 +8,5 @@ export const migrationNames: readonly string[] = [
   '2026_12_02_0300_lab_results_without_copies',
   '2026_12_02_0600_lab_reports_without_copies',
   '2026_12_02_0700_lab_results_storage_index',
+  '2026_12_02_0800_lab_result_kinds',
 ]

@@ -3,6 +3,7 @@ import * as createSchema from '../../migrations/2026_12_01_0900_create_schema.ts
 import * as labResultsWithoutCopies from '../../migrations/2026_12_02_0300_lab_results_without_copies.ts'
 import * as labReportsWithoutCopies from '../../migrations/2026_12_02_0600_lab_reports_without_copies.ts'
 import * as labResultsStorageIndex from '../../migrations/2026_12_02_0700_lab_results_storage_index.ts'
+import * as labResultKinds from '../../migrations/2026_12_02_0800_lab_result_kinds.ts'
 import { migrationNames } from './migration-names.ts'
 
 // A static provider: Kysely's FileMigrationProvider reads the folder at run time, which fails under
@@ -12,6 +13,7 @@ const migrations: Record<string, Migration> = {
   '2026_12_02_0300_lab_results_without_copies': labResultsWithoutCopies,
   '2026_12_02_0600_lab_reports_without_copies': labReportsWithoutCopies,
   '2026_12_02_0700_lab_results_storage_index': labResultsStorageIndex,
+  '2026_12_02_0800_lab_result_kinds': labResultKinds,
 }
 
 if (Object.keys(migrations).join('\n') !== migrationNames.join('\n')) {

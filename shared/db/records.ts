@@ -68,9 +68,10 @@ export function findAnalysisRecords(sqlite: SQLite.Database, farmId: number, sea
   const from = `${Number(window.from.slice(0, 4)) - 1}${window.from.slice(4)}`
   const rows = sqlite
     .prepare(
-      `select s.code as storage, r.sample_code, p.report_number, p.lab, r.sampled_on, r.form, r.species, r.basis, r.units, r.per_unit,
+      `select s.code as storage, r.sample_code, p.report_number, p.lab, r.sampled_on, k.form, k.species, k.basis, k.units, k.per_unit,
          r.dry_matter_pct, r.total_n, r.ammonium_n, r.organic_n, r.p2o5, r.k2o, r.qualifiers, r.superseded_by, r.warnings, i.file_name as source_file
        from lab_results r join storages s on s.id = r.storage_id join lab_reports p on p.id = r.lab_report_id
+         join lab_result_kinds k on k.id = r.kind_id
          left join import_runs i on i.id = p.import_run_id
        where s.farm_id = ? and r.sampled_on >= ? and r.sampled_on <= ?
        order by r.sampled_on, s.code, r.sample_code, r.id`,

@@ -99,6 +99,14 @@ export interface Database {
     import_run_id: number | null
     created_at: Generated<string>
   }
+  lab_result_kinds: {
+    id: Generated<number>
+    form: string
+    species: string
+    basis: string
+    units: string
+    per_unit: string
+  }
   lab_results: {
     id: Generated<number>
     lab_report_id: number
@@ -107,13 +115,10 @@ export interface Database {
     sample_code: string
     sampled_on: string
     line: number | null
-    form: string
-    species: string
-    basis: string
-    units: string
+    /** what the result was reported as: lab_result_kinds (set for every row, by the writer and the migration) */
+    kind_id: number
     reported: string
     qualifiers: string | null
-    per_unit: string
     dry_matter_pct: number | null
     total_n: number | null
     ammonium_n: number | null

@@ -139,7 +139,7 @@ describe('pitside labs import', () => {
     const db = freshDb()
     const r = await runCli(['--db', db, 'labs', 'import', fixture('header-units-moisture.csv')])
     expect(r.exitCode).toBe(0)
-    const [row] = query<Record<string, number | string>>(db, 'select units, basis, dry_matter_pct, total_n, p2o5, k2o, sampled_on from lab_results')
+    const [row] = query<Record<string, number | string>>(db, 'select k.units, k.basis, dry_matter_pct, total_n, p2o5, k2o, sampled_on from lab_results r join lab_result_kinds k on k.id = r.kind_id')
     // P2O5 = P × 2.2914 and K2O = K × 1.2046 (Virginia Tech SPES-201NP, Table 1; atomic masses)
     expect(row).toMatchObject({ units: 'lb_per_ton', basis: 'as_is', dry_matter_pct: 71.5, total_n: 60.2, sampled_on: '2025-08-15' })
     expect(row!.p2o5).toBeCloseTo(26.2 * 2.2914, 2)

@@ -16,7 +16,7 @@ afterEach(async () => {
 })
 
 const expectedTables = [
-  'applications', 'crop_seasons', 'farms', 'fields', 'import_runs', 'lab_reports', 'lab_results',
+  'applications', 'crop_seasons', 'farms', 'fields', 'import_runs', 'lab_reports', 'lab_result_kinds', 'lab_results',
   'organizations', 'plan_fields', 'plans', 'sampling_events', 'share_links', 'soil_tests',
   'storages', 'user_farms', 'users',
 ]
@@ -85,7 +85,9 @@ describe('migrations', () => {
         insert into import_runs (kind, file_name, sha256, outcome, created_at) values ('labs', 'labs.csv', 'abc', 'imported', '2026-11-02 08:00:00');
         insert into lab_reports (lab, report_number, import_run_id) values ('Cobble Run Analytical', 'CRA-26-0001', 1);
         insert into lab_results (lab_report_id, storage_id, report_number, sample_code, sampled_on, form, species, basis, units, reported, per_unit, total_n, import_run_id, created_at)
-          values (1, 1, 'CRA-26-0001', 'S-1', '2026-10-20', 'liquid', 'swine', 'as_is', 'lb_per_1000gal', '{}', '1000gal', 41.5, 1, '2026-11-02 08:00:00');`)
+          values (1, 1, 'CRA-26-0001', 'S-1', '2026-10-20', 'liquid', 'swine', 'as_is', 'lb_per_1000gal', '{}', '1000gal', 41.5, 1, '2026-11-02 08:00:00'),
+                 (1, 1, 'CRA-26-0001', 'S-2', '2026-10-20', 'solid', 'swine', 'dry', 'pct', '{}', 'ton', 2.1, 1, '2026-11-02 08:00:00'),
+                 (1, 1, 'CRA-26-0001', 'S-3', '2026-10-20', 'liquid', 'swine', 'as_is', 'lb_per_1000gal', '{}', '1000gal', 40.9, 1, '2026-11-02 08:00:00');`)
       const outcome = await migrateToLatest(first.db)
       expect(outcome.applied).toEqual(migrationNames.slice(1))
       const columns = s.prepare('select name from pragma_table_info(?)').pluck().all('lab_results')
@@ -97,7 +99,7 @@ describe('migrations', () => {
       expect(reportColumns).not.toContain('source_sha256')
       expect(
         s.prepare(`select p.report_number, i.created_at, r.sample_code, r.total_n from lab_results r
-          join lab_reports p on p.id = r.lab_report_id join import_runs i on i.id = r.import_run_id`).all(),
+          join lab_reports p on p.id = r.lab_report_id join import_runs i on i.id = r.import_run_id where r.sample_code = 'S-1'`).all(),
       ).toEqual([{ report_number: 'CRA-26-0001', created_at: '2026-11-02 08:00:00', sample_code: 'S-1', total_n: 41.5 }])
       // a result is found by its report and sample through the index on (lab_report_id, sample_code)
       const plan = s.prepare(`explain query plan select id from lab_results where lab_report_id = 1 and sample_code = 'S-1'`).all() as { detail: string }[]
@@ -106,6 +108,16 @@ describe('migrations', () => {
       const byStorage = s.prepare(`explain query plan select id from lab_results where storage_id = 1 and superseded_by is null`).all() as { detail: string }[]
       expect(byStorage.map((p) => p.detail).join(' ')).toMatch(/lab_results_storage_idx/)
       expect(s.prepare(`select sql from sqlite_master where name = 'lab_results_storage_idx'`).pluck().get()).toMatch(/\("?storage_id"?\)/)
+      // what the result was reported as is its kind's, stored once
+      for (const c of ['form', 'species', 'basis', 'units', 'per_unit']) expect(columns).not.toContain(c)
+      expect(
+        s.prepare(`select r.sample_code, k.form, k.species, k.basis, k.units, k.per_unit from lab_results r join lab_result_kinds k on k.id = r.kind_id order by r.sample_code`).all(),
+      ).toEqual([
+        { sample_code: 'S-1', form: 'liquid', species: 'swine', basis: 'as_is', units: 'lb_per_1000gal', per_unit: '1000gal' },
+        { sample_code: 'S-2', form: 'solid', species: 'swine', basis: 'dry', units: 'pct', per_unit: 'ton' },
+        { sample_code: 'S-3', form: 'liquid', species: 'swine', basis: 'as_is', units: 'lb_per_1000gal', per_unit: '1000gal' },
+      ])
+      expect(s.prepare('select count(*) from lab_result_kinds').pluck().get()).toBe(2)
       expect(s.pragma('integrity_check', { simple: true })).toBe('ok')
     } finally {
       await first.close()

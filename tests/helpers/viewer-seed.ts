@@ -158,6 +158,21 @@ export function seedFieldResult(field: FieldSeed, storage: StorageSeed, analysis
 
 const round = (x: number, digits = 0) => Math.round(x * 10 ** digits) / 10 ** digits
 
+/** The id of what a lab result was reported as, added when new. */
+async function kindId(db: Kysely<Database>, kind: { form: string; species: string; basis: string; units: string; per_unit: string }): Promise<number> {
+  const found = await db
+    .selectFrom('lab_result_kinds')
+    .select('id')
+    .where('form', '=', kind.form)
+    .where('species', '=', kind.species)
+    .where('basis', '=', kind.basis)
+    .where('units', '=', kind.units)
+    .where('per_unit', '=', kind.per_unit)
+    .executeTakeFirst()
+  if (found) return found.id
+  return (await db.insertInto('lab_result_kinds').values(kind).returning('id').executeTakeFirstOrThrow()).id
+}
+
 export interface SeedResult {
   organizations: Record<string, number>
   farms: Record<string, number>
@@ -224,12 +239,14 @@ export async function seedViewerDatabase(db: Kysely<Database>): Promise<SeedResu
                 storage_id: id,
                 sample_code: `${farm.code}-${s.code}-${season}${month}-${k + 1}`,
                 sampled_on: `${season}-${month}-${String(10 + k * 3).padStart(2, '0')}`,
-                form: s.form,
-                species: s.species,
-                basis: 'as_is',
-                units: s.form === 'liquid' ? 'lb_per_1000gal' : 'lb_per_ton',
+                kind_id: await kindId(db, {
+                  form: s.form,
+                  species: s.species,
+                  basis: 'as_is',
+                  units: s.form === 'liquid' ? 'lb_per_1000gal' : 'lb_per_ton',
+                  per_unit: s.form === 'liquid' ? '1000gal' : 'ton',
+                }),
                 reported: '{}',
-                per_unit: s.form === 'liquid' ? '1000gal' : 'ton',
                 dry_matter_pct: dm,
                 total_n: tn,
                 ammonium_n: nh4,

@@ -3,7 +3,7 @@
 // again after the rows, inside the file's transaction, so a failure at the last row leaves the
 // database as it was, indexes included (SQLite's atomic commit: sqlite.org/atomiccommit.html).
 import SQLite from 'better-sqlite3'
-import { copyFileSync, statSync } from 'node:fs'
+import { copyFileSync, readFileSync, statSync, writeFileSync } from 'node:fs'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { rebuildsIndexes } from '../../shared/db/lab-write.ts'
 import { runCli } from '../helpers/cli.ts'
@@ -33,6 +33,7 @@ function stored(db: string) {
     const rows = (t: string) => s.prepare(`select ${cols(t).join(', ')} from ${t} order by id`).raw().all()
     return {
       schema: s.prepare(`select type, name, sql from sqlite_master where sql is not null order by name`).all(),
+      lab_result_kinds: rows('lab_result_kinds'),
       lab_results: rows('lab_results'),
       lab_reports: rows('lab_reports'),
       import_runs: rows('import_runs'),
@@ -42,11 +43,15 @@ function stored(db: string) {
   }
 }
 
-/** A trigger that makes the insert of one sample's result fail, as a failing write would. */
-function failOnSample(db: string, sampleCode: string, message: string) {
+/**
+ * A trigger that makes the insert of one sample's result fail, as a failing write would. `fail`:
+ * RAISE(FAIL), after which the failed multi-row insert keeps the rows it inserted before that one
+ * (sqlite.org/lang_createtrigger.html, "The RAISE() function"), unlike RAISE(ABORT).
+ */
+function failOnSample(db: string, sampleCode: string, message: string, how: 'abort' | 'fail' = 'abort') {
   const s = new SQLite(db)
   s.exec(`create trigger fail_sample before insert on lab_results when new.sample_code = '${sampleCode}'
-    begin select raise(abort, '${message}'); end;`)
+    begin select raise(${how}, '${message}'); end;`)
   s.close()
 }
 
@@ -97,6 +102,60 @@ describe('the lab writer thread', () => {
     expect(r.stderr).toMatch(/nothing .*was written/)
     expect(dumpDatabase(db)).toBe(before)
     expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
+  }, 120_000)
+
+  it('writes nothing when a row in the middle of a multi-row insert fails and the rows before it stay in the statement', async () => {
+    const db = tmp.path('fails-mid-chunk.db')
+    copyFileSync(template, db)
+    // row 5,000: past the first batch, in the middle of one multi-row insert (chunkRows rows)
+    failOnSample(db, 'CRA-26-BIG-S5000', 'simulated write failure at row 5000', 'fail')
+    const before = dumpDatabase(db)
+    const r = await runCli(['--db', db, 'labs', 'import', big])
+    expect(r.exitCode).not.toBe(0)
+    expect(r.stderr).toContain(`${big}:5001: `)
+    expect(r.stderr).toMatch(/simulated write failure at row 5000/)
+    expect(r.stderr).toMatch(/nothing .*was written/)
+    expect(dumpDatabase(db)).toBe(before)
+    expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
+  }, 120_000)
+
+  it('stores what a result was reported as once per kind, shared by the files that follow, and a refused file adds no kind', async () => {
+    const db = tmp.path('kinds.db')
+    copyFileSync(template, db)
+    const first = await runCli(['--db', db, '-q', 'labs', 'import', big])
+    expect(first.exitCode, String(first.stderr)).toBe(0)
+    const kinds = () => new SQLite(db, { readonly: true }).prepare('select form, species, basis, units, per_unit from lab_result_kinds order by id').all()
+    expect(kinds()).toEqual([{ form: 'liquid', species: 'swine', basis: 'as_is', units: 'lb_per_1000gal', per_unit: '1000gal' }])
+    const second = tmp.path('kinds-second.csv')
+    writeLabFile(second, 'CRA-26-KIND', 12_000)
+    expect((await runCli(['--db', db, '-q', 'labs', 'import', second])).exitCode).toBe(0)
+    expect(kinds()).toHaveLength(1)
+    // a file of another kind whose last row fails: neither its results nor its kind stay
+    const solid = tmp.path('kinds-solid.csv')
+    writeFileSync(solid, readFileSync(second, 'utf8').replaceAll('CRA-26-KIND', 'CRA-26-SOLID').replaceAll(',as_is,', ',dry,'))
+    failOnSample(db, 'CRA-26-SOLID-S12000', 'simulated write failure at the last row')
+    const before = dumpDatabase(db)
+    const refused = await runCli(['--db', db, '-q', 'labs', 'import', solid])
+    expect(refused.exitCode).not.toBe(0)
+    expect(dumpDatabase(db)).toBe(before)
+    expect(kinds()).toHaveLength(1)
+  }, 120_000)
+
+  it('refuses a big file that is not UTF-8 text, checked by the thread started ahead of the program, naming the line', async () => {
+    const db = tmp.path('not-text.db')
+    copyFileSync(template, db)
+    const bad = tmp.path('latin1.csv')
+    const bytes = readFileSync(big)
+    // the 20,001st line's notes cell in Latin-1 (0xE9, "é"), as a spreadsheet saving "CSV" may write it
+    let at = -1
+    for (let line = 1; line <= 20_001; line++) at = bytes.indexOf(10, at + 1)
+    writeFileSync(bad, Buffer.concat([bytes.subarray(0, at - 1), Buffer.from([0x63, 0x61, 0x66, 0xe9]), bytes.subarray(at - 1)]))
+    const before = dumpDatabase(db)
+    const r = await runCli(['--db', db, 'labs', 'import', bad])
+    expect(r.exitCode).toBe(65)
+    expect(r.stderr).toContain(`${bad}:20001: `)
+    expect(r.stderr).toMatch(/not valid UTF-8/)
+    expect(dumpDatabase(db)).toBe(before)
   }, 120_000)
 
   it('hands the thread started ahead of the first file to the next big file when the first was imported before, and exits', async () => {

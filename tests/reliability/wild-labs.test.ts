@@ -93,8 +93,8 @@ describe('real-world-shaped lab files', () => {
 
     const s = new SQLite(db, { readonly: true })
     const stored = s.prepare(
-      `select r.*, p.report_number, st.code as storage_code, f.code as farm_code from lab_results r
-         join lab_reports p on p.id = r.lab_report_id
+      `select r.*, k.form, k.species, k.basis, k.units, k.per_unit, p.report_number, st.code as storage_code, f.code as farm_code from lab_results r
+         join lab_reports p on p.id = r.lab_report_id join lab_result_kinds k on k.id = r.kind_id
          join storages st on st.id = r.storage_id join farms f on f.id = st.farm_id
         where p.report_number = ? and r.sample_code = ?`,
     )
