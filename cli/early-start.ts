@@ -24,8 +24,8 @@ interface EarlyRead {
 
 let earlyRead: EarlyRead | null = null
 let earlyWriter: LabWriterThread | null = null
-/** the bytes of the early read, once handed to the early writer thread to hash and check */
-let checkedBytes: Buffer | null = null
+/** the bytes of the early read, once handed to the early writer thread to hash */
+let hashedBytes: Buffer | null = null
 
 /** The first file of a `labs import` command line, or null for any other command. */
 export function labImportFirstFile(args: readonly string[]): string | null {
@@ -61,20 +61,23 @@ export function startEarly(args: readonly string[]): void {
     earlyRead = { path, done: readWhole(path) }
     if (labWriteWorkerBuilt()) {
       const writer = (earlyWriter = newLabWriterThread())
-      // the thread hashes the bytes and checks that they are UTF-8 text once they are read, while
-      // this one loads the program: the first pass over fresh memory is slow here, and the command
-      // asks for the answers (SpareLabWriter.check) when it has the bytes
+      // the thread hashes the bytes once they are read, while this one loads the program (the
+      // first pass over fresh memory is slow here: the command's own check of the bytes is then
+      // quick); the command asks for the hash (SpareLabWriter.sha256) when it has the bytes
       void earlyRead.done.then((got) => {
         if (!got) return
         const bytes = got.bytes
-        writer.worker.postMessage({ type: 'precheck', buffer: bytes.buffer as SharedArrayBuffer, offset: bytes.byteOffset, length: bytes.length })
-        checkedBytes = bytes
+        writer.worker.postMessage({ type: 'prehash', buffer: bytes.buffer as SharedArrayBuffer, offset: bytes.byteOffset, length: bytes.length })
+        hashedBytes = bytes
       })
     }
   } catch {
     // a guess that failed: the command does it all itself
   }
 }
+
+/** Parts of a file read at the same time: copying it into fresh memory is most of a read's time here, and it is split between cores. */
+const readParts = 2
 
 /** Reads a whole file into shared memory on the thread pool; null on any failure (the command reads it again and reports). */
 function readWhole(path: string): Promise<{ bytes: Buffer; stat: Stats } | null> {
@@ -85,14 +88,22 @@ function readWhole(path: string): Promise<{ bytes: Buffer; stat: Stats } | null>
       fstat(fd, (error, stat) => {
         if (error) return finish(null)
         const bytes = Buffer.from(new SharedArrayBuffer(stat.size))
-        const step = (at: number) => {
-          if (at === stat.size) return finish({ bytes, stat })
-          read(fd, bytes, at, stat.size - at, at, (error, n) => {
-            if (error || n === 0) return finish(null) // shrank while read: read it again
-            step(at + n)
+        const part = Math.ceil(stat.size / readParts)
+        let reading = readParts
+        let failed = false
+        const partDone = (ok: boolean) => {
+          failed ||= !ok
+          if (--reading === 0) finish(failed ? null : { bytes, stat })
+        }
+        // each part in its own sequence of reads, all parts at once
+        const step = (at: number, end: number) => {
+          if (at === end) return partDone(true)
+          read(fd, bytes, at, end - at, at, (error, n) => {
+            if (error || n === 0) return partDone(false) // shrank while read: read it again
+            step(at + n, end)
           })
         }
-        step(0)
+        for (let i = 0; i < readParts; i++) step(Math.min(stat.size, i * part), Math.min(stat.size, (i + 1) * part))
       })
     })
   })
@@ -119,11 +130,11 @@ export async function takeEarlyRead(path: string): Promise<Buffer | null> {
 }
 
 /**
- * Whether these are the bytes of the early read, handed to the early writer thread to hash and
- * check (ask it with `SpareLabWriter.check(bytes, true)`; a thread that did not get them does both then).
+ * Whether these are the bytes of the early read, handed to the early writer thread to hash (ask it
+ * with `SpareLabWriter.sha256(bytes, true)`; a thread that did not get them hashes them then).
  */
-export function checkedEarly(bytes: Uint8Array): boolean {
-  return checkedBytes !== null && bytes === checkedBytes
+export function hashedEarly(bytes: Uint8Array): boolean {
+  return hashedBytes !== null && bytes === hashedBytes
 }
 
 /** The writer thread started early, if any. Taken once; the taker ends it when it does not use it. */

@@ -20,7 +20,7 @@ import { checkLabRow, emptyLabResultValues, type LabCheckContext, type LabResult
 import { bookValuesForStorage } from '../../shared/lab-book-values.ts'
 import type { ActionModule } from '../lazy.ts'
 import { note, printJson, printTable } from '../output.ts'
-import { checkedEarly, takeEarlyLabWriter } from '../early-start.ts'
+import { hashedEarly, takeEarlyLabWriter } from '../early-start.ts'
 import { readInput, readInputBytes } from '../read-input.ts'
 import { withAdvisorSqlite } from './advisor-sqlite.ts'
 
@@ -155,16 +155,13 @@ async function importOne(sqlite: SQLite.Database, path: string, batch: BatchCont
   let problem: Problem | null | undefined
   try {
     if (spare.writer && path !== '-') {
-      // a spare writer thread hashes the bytes (in shared memory) while this thread checks them as
-      // text, or has done both already (bytes read before the program loaded, cli/early-start.ts)
+      // a spare writer thread hashes the bytes (in shared memory) while this thread checks them, or
+      // has hashed them already (bytes read before the program loaded, cli/early-start.ts)
       const { name, bytes } = await readInputBytes(path, { shared: true })
-      const early = checkedEarly(bytes)
-      const hashing = spare.writer.check(bytes as Buffer & Uint8Array<SharedArrayBuffer>, early)
+      const hashing = spare.writer.sha256(bytes as Buffer & Uint8Array<SharedArrayBuffer>, hashedEarly(bytes))
       hashing.catch(() => undefined) // awaited below, after the check
-      if (!early) problem = textProblem(bytes)
-      const checked = await hashing
-      if (early) problem = checked.problem !== undefined ? checked.problem : textProblem(bytes)
-      input = { name, bytes, sha256: checked.sha256 }
+      problem = textProblem(bytes)
+      input = { name, bytes, sha256: await hashing }
     } else input = await readInput(path)
   } catch (error) {
     if (!isAppError(error)) throw error

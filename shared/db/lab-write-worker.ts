@@ -1,8 +1,7 @@
 import type SQLite from 'better-sqlite3'
 import { createHash } from 'node:crypto'
 import { parentPort, workerData } from 'node:worker_threads'
-import { textProblem } from '../decode-text.ts'
-import { isAppError, type Problem } from '../errors.ts'
+import { isAppError } from '../errors.ts'
 import { openWriterSqlite } from './open-sqlite.ts'
 import { beginLabFileWrite, LabRowWriteError, type LabFileMeta, type LabFileWrite } from './lab-write.ts'
 import type { WorkerReply, WorkerRequest, WriteFailure } from './lab-writer.ts'
@@ -29,8 +28,8 @@ let write: LabFileWrite | undefined
 let failure: WriteFailure | null = null
 /** the numbers of the batches, in shared memory that the parser fills again once a batch is done */
 let ring: Float64Array[] = []
-/** the answers for the bytes of a precheck: their hash and why they are not text, or null */
-let prechecked: { sha256: string; problem: Problem | null } | null = null
+/** the SHA-256 of the bytes of a `prehash` */
+let prehashed: string | null = null
 
 const sha256Of = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex')
 
@@ -52,18 +51,15 @@ function onMessage(m: WorkerRequest) {
     return begin(m.file, m.meta)
   }
   if (m.type === 'close') return done()
-  if (m.type === 'precheck') {
-    const bytes = new Uint8Array(m.buffer, m.offset, m.length)
-    prechecked = { sha256: sha256Of(bytes), problem: textProblem(bytes) }
+  if (m.type === 'prehash') {
+    prehashed = sha256Of(new Uint8Array(m.buffer, m.offset, m.length))
     return
   }
   if (m.type === 'hash') {
-    const bytes = new Uint8Array(m.buffer, m.offset, m.length)
-    if (!m.checked) return reply({ type: 'hashed', sha256: sha256Of(bytes) })
-    // bytes given in a precheck (the asker knows they are the same), or checked now
-    const answer = prechecked ?? { sha256: sha256Of(bytes), problem: textProblem(bytes) }
-    prechecked = null
-    return reply({ type: 'hashed', ...answer })
+    // bytes of the prehash (the asker knows they are the same), or hashed now
+    const sha256 = (m.prehashed ? prehashed : null) ?? sha256Of(new Uint8Array(m.buffer, m.offset, m.length))
+    prehashed = null
+    return reply({ type: 'hashed', sha256 })
   }
   if (m.type === 'rows') {
     if (!failure && write) {

@@ -1,7 +1,7 @@
 import type SQLite from 'better-sqlite3'
 import { existsSync } from 'node:fs'
 import type { Worker } from 'node:worker_threads'
-import { AppError, type ErrorCode, type Problem } from '../errors.ts'
+import { AppError, type ErrorCode } from '../errors.ts'
 import type { LabRow } from '../lab-csv.ts'
 import type { LabResultValues } from '../lab-results.ts'
 import { batchRows, beginLabFileWrite, firstBatchRows, LabRowBatch, LabRowWriteError, LabWordList, rowNumbers, type LabFileCounts, type LabFileMeta } from './lab-write.ts'
@@ -42,18 +42,17 @@ export type WriteFailure =
 export type WorkerRequest =
   | { type: 'begin'; file: string; meta: LabFileMeta; ring: SharedArrayBuffer[] }
   | { type: 'close' }
-  /** hash the bytes; `checked`: they were sent in a precheck, answer with its hash and problem */
-  | { type: 'hash'; buffer: SharedArrayBuffer; offset: number; length: number; checked: boolean }
-  /** hash the bytes and check them as text (textProblem) now, to answer a later hash that is `checked` */
-  | { type: 'precheck'; buffer: SharedArrayBuffer; offset: number; length: number }
+  /** hash the bytes; `prehashed`: they were sent in a prehash, answer with its hash */
+  | { type: 'hash'; buffer: SharedArrayBuffer; offset: number; length: number; prehashed: boolean }
+  /** hash the bytes now, to answer a later hash of them that is `prehashed` */
+  | { type: 'prehash'; buffer: SharedArrayBuffer; offset: number; length: number }
   /** a batch: its numbers are in `ring[slot]` of the begin message */
   | { type: 'rows'; words: string[]; text: string; slot: number; count: number }
   | { type: 'finish'; counts: LabFileCounts | null }
 
 export type WorkerReply =
   | { type: 'ready'; runId: number }
-  /** `problem`: the bytes checked as text (answering a `checked` hash), undefined when not checked */
-  | { type: 'hashed'; sha256: string; problem?: Problem | null }
+  | { type: 'hashed'; sha256: string }
   | { type: 'committed'; runId: number; count: number; replaced: number }
   | { type: 'rolled-back' }
   | { type: 'failed'; failure: WriteFailure }
@@ -97,11 +96,10 @@ export function labWriterUsesWorker(sqlite: SQLite.Database, bytes: number | und
 export interface SpareLabWriter {
   /**
    * The SHA-256 (hex) of a file's bytes, computed in the spare thread while this one goes on (with
-   * the bytes in shared memory, nothing is copied), and with `checked` (bytes the thread was given
-   * early, cli/early-start.ts) also why they are not UTF-8 text (textProblem), or null. Call before
-   * the file's write starts.
+   * the bytes in shared memory, nothing is copied), or already computed: `prehashed`, bytes the
+   * thread was given early (cli/early-start.ts). Call before the file's write starts.
    */
-  check(bytes: Uint8Array<SharedArrayBuffer>, checked: boolean): Promise<{ sha256: string; problem?: Problem | null }>
+  sha256(bytes: Uint8Array<SharedArrayBuffer>, prehashed: boolean): Promise<string>
   close(): void
 }
 
@@ -161,11 +159,11 @@ function openChannel(thread: LabWriterThread): WorkerChannel {
     exited,
     next,
     close: () => worker.postMessage({ type: 'close' } satisfies WorkerRequest),
-    check: async (bytes, checked) => {
-      worker.postMessage({ type: 'hash', buffer: bytes.buffer, offset: bytes.byteOffset, length: bytes.length, checked } satisfies WorkerRequest)
+    sha256: async (bytes, prehashed) => {
+      worker.postMessage({ type: 'hash', buffer: bytes.buffer, offset: bytes.byteOffset, length: bytes.length, prehashed } satisfies WorkerRequest)
       worker.ref() // a spare thread keeps the process alive only while this waits for its answer
       const answer = await next().finally(() => worker.unref())
-      if (answer.type === 'hashed') return { sha256: answer.sha256, ...(answer.problem !== undefined ? { problem: answer.problem } : {}) }
+      if (answer.type === 'hashed') return answer.sha256
       throw answer.type === 'failed' ? errorOf(answer.failure) : new Error(`the lab writer thread answered ${answer.type} to a hash`)
     },
   }
