@@ -1,7 +1,7 @@
 // The command line's early start (cli/early-start.ts): which file of a `labs import` it reads
 // before the program has loaded, and that the command gets those bytes only when they are the
 // bytes of the file as it is when the command reads it.
-import { readFileSync, utimesSync, writeFileSync } from 'node:fs'
+import { readFileSync, statSync, utimesSync, writeFileSync } from 'node:fs'
 import { afterAll, describe, expect, it } from 'vitest'
 import { labImportFirstFile, startEarly, takeEarlyLabWriter, takeEarlyRead } from '../../cli/early-start.ts'
 import { makeTempDir } from '../helpers/temp-db.ts'
@@ -34,8 +34,11 @@ describe('labImportFirstFile', () => {
 })
 
 describe('the early read', () => {
-  it('gives the command the bytes of the file it names, once', async () => {
-    const path = bigFile('a.csv', 'report_id,sample_id\n')
+  it('gives the command the bytes of the file it names, in order (it is read in parts at once), once', async () => {
+    // numbered lines and an odd size: parts in the wrong place or a short last part would show
+    const path = tmp.path('a.csv')
+    writeFileSync(path, 'report_id,sample_id\n' + Array.from({ length: 120_001 }, (_, i) => `CRA-${i},S-${i * 7}`).join('\n') + '\nxy')
+    expect(statSync(path).size % 2).toBe(1)
     startEarly(['labs', 'import', path])
     takeEarlyLabWriter()?.worker.terminate() // none under the test runner: the writer thread is not built here
     expect(await takeEarlyRead(tmp.path('other.csv'))).toBeNull()
