@@ -39,9 +39,14 @@ export const firstBatchRows = 256
 /** How many of a file's kinds LabWordList.kindId compares value by value. */
 const kindsCompared = 16
 
-/** The words (repeated strings) of one file, numbered in the order they first appear. */
+/**
+ * The words (repeated strings) of one file, numbered in the order they first appear: the same word
+ * has one number (`id`, `idIn`), except for `runIn`, whose words may be numbered again.
+ */
 export class LabWordList {
   private readonly ids = new Map<string, number>()
+  /** words numbered so far */
+  private count = 0
   /** words numbered since the last `take` */
   private fresh: string[] = []
   /** per slot (a column of the rows), the last word asked for and its number: rows repeat their neighbours' words */
@@ -55,6 +60,21 @@ export class LabWordList {
   idIn(slot: number, word: string): number {
     if (this.lastWord[slot] === word) return this.lastId[slot]!
     const id = this.id(word)
+    this.lastWord[slot] = word
+    this.lastId[slot] = id
+    return id
+  }
+
+  /**
+   * The number of a word in one slot whose words come in runs (a report's number and date, on each
+   * of its rows): the number the slot just had while the word stays the same, else a new number,
+   * even for a word seen before, without looking it up. The reader of these words must not take
+   * equal numbers for equal words or the other way round (the writer finds reports by their text).
+   */
+  runIn(slot: number, word: string): number {
+    if (this.lastWord[slot] === word) return this.lastId[slot]!
+    const id = this.count++
+    this.fresh.push(word)
     this.lastWord[slot] = word
     this.lastId[slot] = id
     return id
@@ -82,7 +102,7 @@ export class LabWordList {
   id(word: string): number {
     let id = this.ids.get(word)
     if (id === undefined) {
-      id = this.ids.size
+      id = this.count++
       this.ids.set(word, id)
       this.fresh.push(word)
     }
@@ -151,8 +171,8 @@ export class LabRowBatch {
     n[o + N_PH] = row.ph ?? NaN
     n[o + N_SUPERSEDES] = supersedes ?? NaN
     n[o + N_FLAGS] = flags
-    n[o + N_REPORT] = w.idIn(0, row.reportId)
-    n[o + N_DATE] = w.idIn(1, row.sampledOn)
+    n[o + N_REPORT] = w.runIn(0, row.reportId)
+    n[o + N_DATE] = w.runIn(1, row.sampledOn)
     n[o + N_KIND] = w.kindId(v.form, v.species, row.basis, row.units, v.perUnit)
     n[o + N_LAB] = row.lab === null ? NaN : w.idIn(2, row.lab)
     this.count++
@@ -321,7 +341,9 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
     if (chunkError !== null) throw LabRowWriteError.of(pending[P_LINE] as number, chunkError)
   }
   const words: string[] = []
-  const reports = new Map<number, number>() // word of the report number → lab report id
+  const reports = new Map<string, number>() // report number → lab report id
+  let lastReportWord = -1
+  let lastReportId = -1
   const kinds = new Map<number, number>() // word of a kind → its id in lab_result_kinds
   /** The id of a kind, found or added (in this transaction: a file rolled back leaves none). */
   let lastKindWord = -1
@@ -364,11 +386,18 @@ export function beginLabFileWrite(sqlite: SQLite.Database, meta: LabFileMeta, op
         try {
           kindId = kindOf(n[o + N_KIND]!)
           const reportWord = n[o + N_REPORT]!
-          reportId = reports.get(reportWord)
-          if (reportId === undefined) {
-            const lab = n[o + N_LAB]!
-            reportId = Number(insertReport.run(lab !== lab ? null : words[lab], words[reportWord]!, runId).lastInsertRowid)
-            reports.set(reportWord, reportId)
+          if (reportWord === lastReportWord) reportId = lastReportId
+          else {
+            // a report's number may come back under a new word (LabWordList.runIn): found by its text
+            const number = words[reportWord]!
+            reportId = reports.get(number)
+            if (reportId === undefined) {
+              const lab = n[o + N_LAB]!
+              reportId = Number(insertReport.run(lab !== lab ? null : words[lab], number, runId).lastInsertRowid)
+              reports.set(number, reportId)
+            }
+            lastReportWord = reportWord
+            lastReportId = reportId
           }
         } catch (error) {
           throw LabRowWriteError.of(line, error)

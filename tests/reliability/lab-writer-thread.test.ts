@@ -104,6 +104,28 @@ describe('the lab writer thread', () => {
     expect(checkFile(db)).toEqual({ integrity: 'ok', foreignKeys: [] })
   }, 120_000)
 
+  it('keeps one lab report for a report number that comes back after another report, in the thread and in the worker', async () => {
+    // report A's rows, then B's, then A's again (a lab file sorted by sample, not by report)
+    const a = tmp.path('interleaved-a.csv')
+    writeLabFile(a, 'CRA-26-A', 300)
+    const lines = readFileSync(a, 'utf8').trimEnd().split('\n')
+    const b = lines.slice(1, 101).map((l) => l.replaceAll('CRA-26-A', 'CRA-26-B'))
+    const file = tmp.path('interleaved.csv')
+    writeFileSync(file, [lines[0], ...lines.slice(1, 151), ...b, ...lines.slice(151)].join('\n') + '\n')
+    for (const mode of ['thread', 'worker']) {
+      const db = tmp.path(`interleaved-${mode}.db`)
+      copyFileSync(template, db)
+      const r = await runCli(['--db', db, '-q', 'labs', 'import', file], { env: { PITSIDE_LAB_WRITER: mode } })
+      expect(r.exitCode, String(r.stderr)).toBe(0)
+      const s = new SQLite(db, { readonly: true })
+      expect(s.prepare(`select p.report_number, count(*) as n from lab_results r join lab_reports p on p.id = r.lab_report_id group by p.id order by p.id`).all()).toEqual([
+        { report_number: 'CRA-26-A', n: 300 },
+        { report_number: 'CRA-26-B', n: 100 },
+      ])
+      s.close()
+    }
+  }, 60_000)
+
   it('writes nothing when a row in the middle of a multi-row insert fails and the rows before it stay in the statement', async () => {
     const db = tmp.path('fails-mid-chunk.db')
     copyFileSync(template, db)
