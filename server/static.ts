@@ -83,15 +83,13 @@ export function pagePreloads(path: string, modules: PageModules = {}): string | 
 /**
  * The Link header of a plan page the server rendered: the figures' typeface (so that the first
  * layout of the rate tables is done with it, not done again when it arrives: one layout of a
- * 200-field plan's tables costs 250-400 ms here) and the plan's answer, which the browser hydrates
- * from (the small answers are in the page). Not the page's code: it is started after the first
- * paint (server/plan-page.ts, afterPaint), and fetching and compiling it earlier would compete
- * with the first layout.
+ * 200-field plan's tables costs 250-400 ms here). Neither the page's code nor the plan's answer
+ * it hydrates from: both are asked for after the first paint (server/plan-page.ts, afterPaint),
+ * and fetching, decoding and compiling them earlier would compete with the first layout.
  */
-export function renderedPagePreloads(planId: string, fonts: string[] = []): string {
+export function renderedPagePreloads(fonts: string[] = []): string | null {
   const links = fonts.map((f) => `<${f}>; rel=preload; as=font; type="font/woff2"; crossorigin=anonymous`)
-  links.push(`</api/plans/${planId}>; rel=preload; as=fetch; crossorigin=anonymous`)
-  return links.join(', ')
+  return links.length > 0 ? links.join(', ') : null
 }
 
 const compressible = new Set(['.js', '.css', '.svg', '.json', '.html', '.map', '.txt'])
@@ -149,7 +147,8 @@ export function webRoutes(webDir: string | null, planPage?: PlanPageDeps): Route
     if (plan) res.set('Vary', 'Cookie')
     const rendered = plan && renderPlanPage ? await renderPlanPage(req, plan[1]!) : null
     if (plan && rendered) {
-      res.set('Link', renderedPagePreloads(plan[1]!, fonts))
+      const links = renderedPagePreloads(fonts)
+      if (links) res.set('Link', links)
       // one user's page: never stored by a browser's or a proxy's cache
       res.set('Cache-Control', 'private, no-store').set('Vary', 'Cookie, Accept-Encoding').type('html')
       if (acceptsGzip(req.headers['accept-encoding'])) res.set('Content-Encoding', 'gzip').send(rendered.gzip)

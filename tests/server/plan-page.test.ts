@@ -80,20 +80,19 @@ describe('the server-rendered plan page', () => {
     expect(root).toContain('Maren Castellano') // the signed-in user in the page's header
     expect(root).toMatch(/hydrogen sulfide/i)
     const data = JSON.parse(dataElement.exec(html)![1]!) as { session: { user: { email: string } }; planId: string; plan?: PlanView; versions: { versions: unknown[] } }
-    // the plan is in the markup, not again in the data: the browser fetches it to hydrate (preloaded below)
+    // the plan is in the markup, not again in the data: the browser fetches it to hydrate, after the first paint
     expect(data.plan).toBeUndefined()
     expect(data.planId).toBe(String(id))
     expect(data.session.user.email).toBe('maren@loamridge.example')
     expect(data.versions).toEqual((await request(fx.app).get(`/api/plans/${id}/versions`).set('Cookie', cookie)).body)
-    for (const tag of scriptTags(html)) expect(tag, tag).toMatch(/\bsrc="\/assets\/|^<script defer src="\/after-paint\.js" data-entry="\/assets\/[\w.-]+\.js">|type="application\/json"/)
-    // the plan it hydrates from and the figures' typeface are named for the browser (the small answers
-    // are in the page); its code is started after the first paint, so it is not named
+    for (const tag of scriptTags(html)) expect(tag, tag).toMatch(/\bsrc="\/assets\/|^<script defer src="\/after-paint\.js" data-entry="\/assets\/[\w.-]+\.js"( data-fetch="\/api\/plans\/\d+")?>|type="application\/json"/)
+    // the figures' typeface is named for the browser; its code and the plan it hydrates from are
+    // asked for after the first paint (the small answers are in the page), so they are not named
     const links = String(r.headers.link).split(', ')
-    expect(links).toContain(`</api/plans/${id}>; rel=preload; as=fetch; crossorigin=anonymous`)
-    expect(links.filter((l) => /\/api\//.test(l))).toHaveLength(1)
+    expect(links.filter((l) => /\/api\//.test(l))).toEqual([])
     expect(links.filter((l) => /rel=modulepreload/.test(l))).toEqual([])
     const entry = /<script type="module" crossorigin src="(\/assets\/[\w.-]+\.js)"><\/script>/.exec(index)![1]!
-    expect(html).toContain(`<script defer src="/after-paint.js" data-entry="${entry}"></script>`)
+    expect(html).toContain(`<script defer src="/after-paint.js" data-entry="${entry}" data-fetch="/api/plans/${id}"></script>`)
     expect(html).not.toContain(`<script type="module" crossorigin src="${entry}">`)
     expect(links.filter((l) => /^<\/assets\/jetbrains-mono-latin-(400|600)-normal-[\w-]+\.woff2>; rel=preload; as=font; type="font\/woff2"; crossorigin=anonymous$/.test(l))).toHaveLength(2)
   })
@@ -157,7 +156,7 @@ describe('the server-rendered plan page', () => {
     expect(inner).not.toMatch(/[<>&\u2028\u2029]/)
     expect(JSON.parse(inner)).toEqual({ session: { user: { name: hostile } }, planId: hostile, versions: { versions: [hostile] }, router: {} })
     expect(plan.result.fields![0]!.name).toBe(hostile)
-    for (const tag of scriptTags(html)) expect(tag, tag).toMatch(/\bsrc="\/assets\/|^<script defer src="\/after-paint\.js" data-entry="\/assets\/[\w.-]+\.js">|type="application\/json"/)
+    for (const tag of scriptTags(html)) expect(tag, tag).toMatch(/\bsrc="\/assets\/|^<script defer src="\/after-paint\.js" data-entry="\/assets\/[\w.-]+\.js"( data-fetch="\/api\/plans\/\d+")?>|type="application\/json"/)
   })
 
   it('answers the plain page and logs the failure once when the page cannot be rendered', async () => {
