@@ -44,7 +44,7 @@ process.stdout.on('error', (error: NodeJS.ErrnoException) => {
 })
 
 const program = buildProgram()
-registerCommands(program)
+await registerCommands(program, process.argv.slice(2))
 
 try {
   await program.parseAsync(process.argv)

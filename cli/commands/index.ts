@@ -1,44 +1,55 @@
 import type { Command } from 'commander'
-import { register as registerBackup } from './backup.ts'
-import { register as registerCheck } from './check.ts'
-import { register as registerInit } from './init.ts'
-import { register as registerLabs } from './labs.ts'
-import { register as registerPlan } from './plan.ts'
-import { register as registerPlans } from './plans.ts'
-import { register as registerExport } from './export.ts'
-import { register as registerRecords } from './records.ts'
-import { register as registerRestore } from './restore.ts'
-import { register as registerUsers } from './users.ts'
-import { register as registerFarms } from './farms.ts'
-import { register as registerStorages } from './storages.ts'
-import { register as registerFields } from './fields.ts'
-import { register as registerSamples } from './samples.ts'
-import { register as registerApplications } from './applications.ts'
-import { register as registerDemo } from './demo.ts'
-import { register as registerShare } from './share.ts'
-import { register as registerServe } from './serve.ts'
-import { register as registerCalc } from './calc.ts'
 
-// Registration only: each register() declares a command's options and help, and loads the
-// implementation from cli/actions/ when the command runs. Keep these modules light.
-export function registerCommands(program: Command): void {
-  registerInit(program)
-  registerLabs(program)
-  registerPlan(program)
-  registerPlans(program)
-  registerExport(program)
-  registerRecords(program)
-  registerBackup(program)
-  registerRestore(program)
-  registerCheck(program)
-  registerUsers(program)
-  registerFarms(program)
-  registerStorages(program)
-  registerFields(program)
-  registerSamples(program)
-  registerApplications(program)
-  registerDemo(program)
-  registerShare(program)
-  registerServe(program)
-  registerCalc(program)
+type Registration = { register(program: Command): void }
+
+/**
+ * Every command's registration module, in the order `pitside --help` lists them. Registration only:
+ * each register() declares a command's options and help, and loads the implementation from
+ * cli/actions/ when the command runs. Keep these modules light.
+ */
+const commands: Record<string, () => Promise<Registration>> = {
+  init: () => import('./init.ts'),
+  labs: () => import('./labs.ts'),
+  plan: () => import('./plan.ts'),
+  plans: () => import('./plans.ts'),
+  export: () => import('./export.ts'),
+  records: () => import('./records.ts'),
+  backup: () => import('./backup.ts'),
+  restore: () => import('./restore.ts'),
+  check: () => import('./check.ts'),
+  users: () => import('./users.ts'),
+  farms: () => import('./farms.ts'),
+  storages: () => import('./storages.ts'),
+  fields: () => import('./fields.ts'),
+  samples: () => import('./samples.ts'),
+  applications: () => import('./applications.ts'),
+  demo: () => import('./demo.ts'),
+  share: () => import('./share.ts'),
+  serve: () => import('./serve.ts'),
+  calc: () => import('./calc.ts'),
+}
+
+/** The program's options that take a value (the value is not the command's name). */
+const withValue = new Set(['--db'])
+
+/** The command a command line names (its first word that is not an option or an option's value), if it is one of Pitside's. */
+export function commandOf(args: readonly string[]): string | null {
+  for (let i = 0; i < args.length; i++) {
+    const a = args[i]!
+    if (a === '--') return null
+    if (withValue.has(a)) i++
+    else if (!a.startsWith('-')) return Object.hasOwn(commands, a) ? a : null
+  }
+  return null
+}
+
+/**
+ * Registers the commands: only the one the command line names, when it names one (the others'
+ * modules are not loaded, which starts a command sooner), else all of them (help, a mistyped command
+ * and its suggestions, no command at all).
+ */
+export async function registerCommands(program: Command, args: readonly string[] = []): Promise<void> {
+  const named = commandOf(args)
+  const modules = await Promise.all((named ? [named] : Object.keys(commands)).map((name) => commands[name]!()))
+  for (const m of modules) m.register(program)
 }
