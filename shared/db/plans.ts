@@ -237,9 +237,9 @@ export function planWriter(sqlite: SQLite.Database) {
   )
   /**
    * Writes one farm's plan as a new version (the highest for its farm and season plus one) with
-   * its field rows, in one transaction. Returns the plan JSON with its id. Plans are never updated.
+   * its field rows, in the caller's transaction. Returns the plan JSON with its id. Plans are never updated.
    */
-  const write = sqlite.transaction((p: NewPlan): PlanJson => {
+  const writeOne = (p: NewPlan): PlanJson => {
     const version = nextVersion.get(p.farm.farmId, p.body.season) as number
     const stored = planJson(p.body, { version, createdAt: p.createdAt })
     // each field is serialized once: for its plan_fields row and, spliced in, for plans.result
@@ -281,8 +281,18 @@ export function planWriter(sqlite: SQLite.Database) {
       )
     })
     return { id, ...stored }
-  })
-  return { write: (p: NewPlan) => write.immediate(p) }
+  }
+  const one = sqlite.transaction(writeOne)
+  const many = sqlite.transaction((ps: readonly NewPlan[]) => ps.map(writeOne))
+  return {
+    /** One farm's plan in a transaction of its own. */
+    write: (p: NewPlan) => one.immediate(p),
+    /**
+     * Several farms' plans in one transaction, all or none (without a savepoint per plan, which
+     * would copy every page a plan changes to a temporary file first).
+     */
+    writeAll: (ps: readonly NewPlan[]) => many.immediate(ps),
+  }
 }
 
 // ── reading stored plans ─────────────────────────────────────────────────────────────────────

@@ -195,6 +195,34 @@ describe('pitside plan', () => {
     expect(after).toEqual(before.map(({ id: i, result }) => ({ id: i, result })))
   })
 
+  it('writes each farm of a run whole or not at all: a farm whose write fails leaves nothing, the farms before it stay', async () => {
+    const db = copyOfDemo()
+    const farms = query<{ id: number; code: string }>(db, 'select id, code from farms order by code')
+    expect(farms.length).toBeGreaterThan(2)
+    const failing = farms[2]! // farms are planned in code order: two are written before it
+    const count = (sql: string) => query<{ n: number }>(db, sql)[0]!.n
+    const plansBefore = count('select count(*) as n from plans')
+    const lastBefore = count('select max(id) as n from plans')
+    const fieldsBefore = count('select count(*) as n from plan_fields')
+    const s = new Database(db)
+    // its second field's row fails: its plan row is in by then, and must go with it
+    s.exec(`create trigger fail_farm before insert on plan_fields
+      when (select farm_id from plans where id = new.plan_id) = ${failing.id}
+       and (select count(*) from plan_fields where plan_id = new.plan_id) = 1
+      begin select raise(abort, 'simulated write failure'); end;`)
+    s.close()
+    const r = await runCli(['--db', db, '-q', 'plan', '--all', '--season', '2027', '--as-of', '2026-11-15'])
+    expect(r.exitCode).not.toBe(0)
+    expect(r.stderr).toMatch(/simulated write failure/)
+    expect(r.stderr).not.toMatch(/\bat .*\.(js|ts):\d+/)
+    const planned = query<{ code: string }>(db, 'select f.code from plans p join farms f on f.id = p.farm_id where p.id > ? order by p.id', lastBefore)
+    expect(planned.map((p) => p.code)).toEqual([farms[0]!.code, farms[1]!.code])
+    expect(count('select count(*) as n from plans')).toBe(plansBefore + 2)
+    // every stored plan has its field rows: nothing of the failing farm's plan stayed
+    expect(count('select count(*) as n from plans p where not exists (select 1 from plan_fields f where f.plan_id = p.id)')).toBe(0)
+    expect(count('select count(*) as n from plan_fields')).toBeGreaterThan(fieldsBefore)
+  })
+
   it('plans on book values with a warning when a storage has no lab result', async () => {
     const db = tmp.path('book.db')
     await seedDatabaseFile(db, [
