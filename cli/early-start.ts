@@ -1,5 +1,6 @@
 import { close, fstat, open, read, statSync, type Stats } from 'node:fs'
 import { newLabWriterThread, labWriteWorkerBuilt, type LabWriterThread } from '../shared/db/lab-writer-thread.ts'
+import { programOptionsWithValue } from './program-options.ts'
 
 /**
  * Work a command is about to need, started before the program's own modules are loaded (bin/
@@ -14,7 +15,7 @@ import { newLabWriterThread, labWriteWorkerBuilt, type LabWriterThread } from '.
 const earlyFromBytes = 1024 * 1024
 
 /** Options of the program and of `labs import` that take a value (the value is not a file). */
-const withValue = new Set(['--db', '--profile', '--reference'])
+const withValue = new Set([...programOptionsWithValue, '--profile', '--reference'])
 
 interface EarlyRead {
   path: string

@@ -1,4 +1,5 @@
 import type { Command } from 'commander'
+import { programOptionsWithValue } from '../program-options.ts'
 
 type Registration = { register(program: Command): void }
 
@@ -29,15 +30,12 @@ const commands: Record<string, () => Promise<Registration>> = {
   calc: () => import('./calc.ts'),
 }
 
-/** The program's options that take a value (the value is not the command's name). */
-const withValue = new Set(['--db'])
-
 /** The command a command line names (its first word that is not an option or an option's value), if it is one of Pitside's. */
 export function commandOf(args: readonly string[]): string | null {
   for (let i = 0; i < args.length; i++) {
     const a = args[i]!
     if (a === '--') return null
-    if (withValue.has(a)) i++
+    if (programOptionsWithValue.has(a)) i++
     else if (!a.startsWith('-')) return Object.hasOwn(commands, a) ? a : null
   }
   return null
